@@ -1,1 +1,171 @@
-fn main() {}
+//! Criterion benchmarks of the hot paths: Lambert, ephemeris, Kepler propagation, tour
+//! evaluation, window maps, the direct-transfer search and the optimiser.
+
+use std::hint::black_box;
+use std::path::Path;
+
+use criterion::{Criterion, criterion_group, criterion_main};
+use tourwright::astro::bodies::Planet;
+use tourwright::astro::constants::{AU_KM, MU_SUN};
+use tourwright::astro::ephemeris::Ephemeris;
+use tourwright::astro::kepler;
+use tourwright::astro::lambert::{self, Direction};
+use tourwright::astro::time::Epoch;
+use tourwright::astro::{State, Vec3};
+use tourwright::mission::evaluate::{EvalOptions, Evaluation, evaluate_into};
+use tourwright::mission::{MissionDesign, files};
+use tourwright::search::job::Progress;
+use tourwright::search::optimize::{self, OptimizeOptions, Problem};
+use tourwright::search::window::{self, SecondAxis, WindowSpec};
+
+struct Rng(u64);
+impl Rng {
+    fn next(&mut self) -> f64 {
+        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
+        let mut z = self.0;
+        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
+    }
+}
+
+fn geometries(n: usize) -> Vec<(Vec3, Vec3, f64)> {
+    let mut r = Rng(42);
+    (0..n)
+        .map(|_| {
+            let a = r.next() * std::f64::consts::TAU;
+            let b = a + r.next() * std::f64::consts::TAU;
+            let r1 = (0.4 + 5.0 * r.next()) * AU_KM;
+            let r2 = (0.4 + 5.0 * r.next()) * AU_KM;
+            (
+                Vec3::new(r1 * a.cos(), r1 * a.sin(), 0.01 * r1 * (r.next() - 0.5)),
+                Vec3::new(r2 * b.cos(), r2 * b.sin(), 0.01 * r2 * (r.next() - 0.5)),
+                (30.0 + 1500.0 * r.next()) * 86_400.0,
+            )
+        })
+        .collect()
+}
+
+fn sample(name: &str) -> MissionDesign {
+    files::load(
+        &Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("sample-missions")
+            .join(name),
+    )
+    .unwrap()
+}
+
+fn six_stop_design() -> MissionDesign {
+    // E-V-E-E-J-S style tour (six stops) built from the Jupiter sample's bodies; epochs are
+    // spread so that every leg has a solution.
+    let mut d = sample("lantern-jupiter-evej.tour.ron");
+    let t0 = d.stops[0].epoch;
+    let names = ["Earth", "Venus", "Venus", "Earth", "Jupiter", "Saturn"];
+    let days = [0.0, 160.0, 560.0, 620.0, 1700.0, 3800.0];
+    d.stops = names
+        .iter()
+        .zip(days)
+        .map(|(n, t)| tourwright::mission::design::Stop {
+            body: n.to_string(),
+            epoch: t0.plus_days(t),
+            swingby: Default::default(),
+        })
+        .collect();
+    d.legs = vec![Default::default(); 5];
+    d.legs[1].revolutions = 0;
+    d
+}
+
+fn benches(c: &mut Criterion) {
+    let geo = geometries(1024);
+    c.bench_function("lambert_single_rev", |b| {
+        let mut i = 0;
+        b.iter(|| {
+            let (r1, r2, t) = &geo[i & 1023];
+            i += 1;
+            black_box(lambert::solve_single(r1, r2, *t, MU_SUN, Direction::Prograde).ok())
+        })
+    });
+    c.bench_function("lambert_up_to_3_revs", |b| {
+        let mut i = 0;
+        b.iter(|| {
+            let (r1, r2, t) = &geo[i & 1023];
+            i += 1;
+            black_box(lambert::solve(r1, r2, *t * 3.0, MU_SUN, Direction::Prograde, 3).ok())
+        })
+    });
+    c.bench_function("ephemeris_state", |b| {
+        let mut t = 0.0;
+        b.iter(|| {
+            t += 17.3;
+            black_box(Planet::Mars.state(Epoch::from_tdb_days(t % 9000.0)).ok())
+        })
+    });
+    c.bench_function("kepler_propagate", |b| {
+        let s = State {
+            r: Vec3::new(AU_KM, 0.0, 0.0),
+            v: Vec3::new(0.0, 33.0, 1.0),
+        };
+        let mut dt = 1.0e6;
+        b.iter(|| {
+            dt = (dt * 1.37) % 3.0e8 + 1.0e5;
+            black_box(kepler::propagate(&s, dt, MU_SUN).ok())
+        })
+    });
+    let d6 = six_stop_design();
+    let mut e = Evaluation::default();
+    c.bench_function("evaluate_six_stops_with_samples", |b| {
+        b.iter(|| {
+            evaluate_into(black_box(&d6), &EvalOptions::default(), &mut e);
+            black_box(e.complete)
+        })
+    });
+    c.bench_function("evaluate_six_stops_no_samples", |b| {
+        b.iter(|| {
+            evaluate_into(black_box(&d6), &EvalOptions { samples_per_leg: 0 }, &mut e);
+            black_box(e.complete)
+        })
+    });
+    let mut g = c.benchmark_group("slow");
+    g.sample_size(10);
+    let base = MissionDesign::new_blank();
+    let spec = WindowSpec {
+        from: "Earth".into(),
+        to: "Mars".into(),
+        depart: (
+            Epoch::parse("2033-01-01").unwrap(),
+            Epoch::parse("2033-12-31").unwrap(),
+        ),
+        second: SecondAxis::Tof(80.0, 500.0),
+        nx: 500,
+        ny: 500,
+        leg: Default::default(),
+        goal: Default::default(),
+    };
+    g.bench_function("window_map_500x500", |b| {
+        b.iter(|| black_box(window::compute(&base, &spec, &Progress::new())))
+    });
+    let tern = sample("tern-saturn-ejs.tour.ron");
+    g.bench_function("direct_vs_assist_grid240", |b| {
+        let o = tourwright::mission::direct::DirectOptions::for_design(&tern);
+        b.iter(|| black_box(tourwright::mission::direct::compare(&tern, &o)))
+    });
+    let p = Problem::from_design(&sample("lantern-jupiter-evej.tour.ron"));
+    g.bench_function("optimize_evej_100k_evals", |b| {
+        b.iter(|| {
+            black_box(optimize::optimize(
+                &p,
+                &OptimizeOptions {
+                    max_evals: 100_000,
+                    ..Default::default()
+                },
+                &Progress::new(),
+                false,
+            ))
+        })
+    });
+    g.finish();
+}
+
+criterion_group!(engine, benches);
+criterion_main!(engine);

@@ -40,20 +40,28 @@ fn lambert_solutions_land_on_r2() {
         let r2n = rng.range(0.3, 40.0) * AU_KM;
         let a1 = rng.range(0.0, std::f64::consts::TAU);
         let dtheta = match k % 5 {
-            0 => rng.range(1e-5, 1e-2),                                         // near 0°
-            1 => std::f64::consts::PI + rng.range(-1e-2, 1e-2).max(1e-5),       // near 180°
-            2 => std::f64::consts::TAU - rng.range(1e-5, 1e-2),                 // near 360°
+            0 => rng.range(1e-5, 1e-2),                                   // near 0°
+            1 => std::f64::consts::PI + rng.range(-1e-2, 1e-2).max(1e-5), // near 180°
+            2 => std::f64::consts::TAU - rng.range(1e-5, 1e-2),           // near 360°
             _ => rng.range(0.0, std::f64::consts::TAU),
         };
         // Near 360° the radii must be alike, or the zero-revolution arc dives through the Sun.
-        let r2n = if k % 5 == 2 { r1n * rng.range(0.7, 1.4) } else { r2n };
+        let r2n = if k % 5 == 2 {
+            r1n * rng.range(0.7, 1.4)
+        } else {
+            r2n
+        };
         let mut r1 = point(&mut rng, r1n, a1);
         let mut r2 = point(&mut rng, r2n, a1 + dtheta);
         if k % 5 < 3 {
             r1.z = 0.0;
             r2.z = 0.0;
         }
-        let dir = if k % 5 >= 3 && k % 7 == 0 { Direction::Retrograde } else { Direction::Prograde };
+        let dir = if k % 5 >= 3 && k % 7 == 0 {
+            Direction::Retrograde
+        } else {
+            Direction::Prograde
+        };
         // TOF: 5 days to 40 years, or for the special angles 0.3 to 3 Hohmann times (the designs
         // that meet such geometries in practice), so that most arcs stay interplanetary.
         let a_h = 0.5 * (r1n + r2n);
@@ -63,7 +71,11 @@ fn lambert_solutions_land_on_r2() {
             _ => rng.range(5.0, if k % 3 == 0 { 60.0 } else { 14_600.0 }) * 86_400.0,
         };
         // Interplanetary: mean speed along the swept arc under 60 km/s.
-        let sweep = if dir == Direction::Prograde { dtheta } else { std::f64::consts::TAU - dtheta };
+        let sweep = if dir == Direction::Prograde {
+            dtheta
+        } else {
+            std::f64::consts::TAU - dtheta
+        };
         tof = tof.max((sweep * 0.5 * (r1n + r2n) + (r2n - r1n).abs()) / 60.0);
         let sols = lambert::solve(&r1, &r2, tof, MU_SUN, dir, 3).expect("valid geometry");
         assert!(!sols.is_empty(), "case {k}: no zero-revolution solution");
@@ -81,7 +93,12 @@ fn lambert_solutions_land_on_r2() {
             }
             let end = kepler::propagate(&State { r: r1, v: s.v1 }, tof, MU_SUN).unwrap();
             let err = (end.r - r2).norm() / r2.norm();
-            assert!(err <= 1e-9, "case {k} revs {} {:?}: relative miss {err:e}", s.revs, s.branch);
+            assert!(
+                err <= 1e-9,
+                "case {k} revs {} {:?}: relative miss {err:e}",
+                s.revs,
+                s.branch
+            );
             solved += 1;
             if s.x > 1.0 {
                 hyperbolic += 1;
@@ -93,7 +110,9 @@ fn lambert_solutions_land_on_r2() {
     }
     assert!(hyperbolic > 1_000, "too few hyperbolic cases: {hyperbolic}");
     assert!(multi > 1_000, "too few multi-revolution cases: {multi}");
-    println!("solved {solved} hyperbolic {hyperbolic} multi-rev {multi} sun-grazing skipped {grazing}");
+    println!(
+        "solved {solved} hyperbolic {hyperbolic} multi-rev {multi} sun-grazing skipped {grazing}"
+    );
     assert!(solved >= 100_000, "only {solved} arcs checked");
 }
 
@@ -103,7 +122,7 @@ proptest! {
     /// Propagating forward then back returns to the start, for ellipses and hyperbolas alike.
     #[test]
     fn kepler_round_trip(p in 6_600.0f64..200_000.0, e in 0.0f64..3.0, i in 0.0f64..3.1,
-                         raan in 0.0f64..6.28, argp in 0.0f64..6.28, nu in -1.5f64..1.5,
+                         raan in 0.0f64..6.2, argp in 0.0f64..6.2, nu in -1.5f64..1.5,
                          dt in -200_000.0f64..200_000.0) {
         let mu = 398_600.4418;
         let el = Elements { p, e, i, raan, argp, nu };
@@ -123,7 +142,7 @@ proptest! {
     /// An unpowered swing-by keeps |v∞| and turns it by exactly δ = 2 asin(1/e).
     #[test]
     fn unpowered_swingby_turns_by_delta(vx in -20.0f64..20.0, vy in -20.0f64..20.0, vz in -5.0f64..5.0,
-                                        alt in 100.0f64..1.0e6, aim in -3.14f64..3.14) {
+                                        alt in 100.0f64..1.0e6, aim in -3.1f64..3.1) {
         use tourwright::astro::flyby;
         let vin = Vec3::new(vx, vy, vz);
         prop_assume!(vin.norm() > 0.1);
@@ -151,7 +170,10 @@ proptest! {
 #[test]
 fn orbit_elements_cover_circular_equatorial() {
     let mu = MU_SUN;
-    let s = State { r: Vec3::new(AU_KM, 0.0, 0.0), v: Vec3::new(0.0, (mu / AU_KM).sqrt(), 0.0) };
+    let s = State {
+        r: Vec3::new(AU_KM, 0.0, 0.0),
+        v: Vec3::new(0.0, (mu / AU_KM).sqrt(), 0.0),
+    };
     let el = Elements::from_state(&s, mu).unwrap();
     assert!(el.e < 1e-12 && el.i.abs() < 1e-12);
     assert!(el.to_state(mu).unwrap().r.metric_distance(&s.r) < 1e-3);

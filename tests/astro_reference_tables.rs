@@ -1,11 +1,11 @@
 //! The engine against tables generated with ERFA through pyerfa (tests/fixtures/make_erfa_tables.py,
 //! pyerfa 2.0.1.5, ERFA 2.0.1; the versions are also in each table's header).
 
+use tourwright::astro::Vec3;
 use tourwright::astro::bodies::Planet;
 use tourwright::astro::constants::OBLIQUITY_J2000_RAD;
 use tourwright::astro::ephemeris::{Ephemeris, MeanElements};
 use tourwright::astro::time::Epoch;
-use tourwright::astro::Vec3;
 
 fn rows(name: &str) -> Vec<Vec<String>> {
     let path = format!("{}/tests/fixtures/{name}", env!("CARGO_MANIFEST_DIR"));
@@ -31,14 +31,24 @@ fn utc_to_tdb_matches_erfa() {
     // The leap second itself (2016-12-31T23:59:60) is in the table.
     for r in rows("erfa_time.csv") {
         let p = |k: usize| r[k].parse::<f64>().unwrap();
-        let e = Epoch::from_utc(p(0) as i32, p(1) as u32, p(2) as u32, p(3) as u32, p(4) as u32, p(5));
+        let e = Epoch::from_utc(
+            p(0) as i32,
+            p(1) as u32,
+            p(2) as u32,
+            p(3) as u32,
+            p(4) as u32,
+            p(5),
+        );
         assert!((e.tdb_s - p(6)).abs() < 1e-4, "{r:?}: engine {}", e.tdb_s);
         // And the text round trip (away from the leap second, which formats as the next day).
         if p(5) < 60.0 {
             let text = e.to_iso_utc();
             let back = Epoch::parse(&text).unwrap();
             assert!((back.tdb_s - e.tdb_s).abs() < 1e-3, "{text}");
-            assert!(text.starts_with(&format!("{:04}-{:02}-{:02}", p(0), p(1), p(2))), "{text}");
+            assert!(
+                text.starts_with(&format!("{:04}-{:02}-{:02}", p(0), p(1), p(2))),
+                "{text}"
+            );
         }
     }
 }
@@ -92,7 +102,10 @@ fn mean_elements_agree_with_erfa_plan94_and_epv00() {
         let s = MeanElements::of(planet).state(t).unwrap();
         let rr = Vec3::new(f(2), f(3), f(4));
         let vv = Vec3::new(f(5), f(6), f(7));
-        let ang = (s.r.dot(&rr) / (s.r.norm() * rr.norm())).clamp(-1.0, 1.0).acos().to_degrees();
+        let ang = (s.r.dot(&rr) / (s.r.norm() * rr.norm()))
+            .clamp(-1.0, 1.0)
+            .acos()
+            .to_degrees();
         let dr = (s.r.norm() - rr.norm()).abs() / rr.norm();
         let dv = (s.v - vv).norm() / vv.norm();
         let (ta, tr) = tolerance(body);
@@ -100,7 +113,14 @@ fn mean_elements_agree_with_erfa_plan94_and_epv00() {
         assert!(dr < tr, "{body} at JD {}: distance off by {dr}", f(1));
         // Velocity: the mean elements carry no perturbations; measured here at most 0.4% for the
         // giants and 0.05% for the inner planets.
-        let tv = if matches!(planet, Planet::Jupiter | Planet::Saturn | Planet::Uranus | Planet::Neptune) { 6e-3 } else { 1e-3 };
+        let tv = if matches!(
+            planet,
+            Planet::Jupiter | Planet::Saturn | Planet::Uranus | Planet::Neptune
+        ) {
+            6e-3
+        } else {
+            1e-3
+        };
         assert!(dv < tv, "{body}: velocity off by {dv}");
         let w = worst.entry(body.to_string()).or_default();
         w.0 = w.0.max(ang);

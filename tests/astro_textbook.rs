@@ -10,7 +10,12 @@ use tourwright::astro::{State, Vec3};
 
 fn close(a: &Vec3, b: &[f64; 3], tol: f64) {
     for k in 0..3 {
-        assert!((a[k] - b[k]).abs() <= tol, "component {k}: got {} expected {} (tol {tol})", a[k], b[k]);
+        assert!(
+            (a[k] - b[k]).abs() <= tol,
+            "component {k}: got {} expected {} (tol {tol})",
+            a[k],
+            b[k]
+        );
     }
 }
 
@@ -52,7 +57,10 @@ fn kepler_vallado_example_2_4() {
 #[test]
 fn kepler_curtis_example_3_7() {
     // Curtis, Example 3.7 (from memory): 60 min propagation about Earth (μ = 398 600).
-    let s0 = State { r: Vec3::new(7_000.0, -12_124.0, 0.0), v: Vec3::new(2.6679, 4.6210, 0.0) };
+    let s0 = State {
+        r: Vec3::new(7_000.0, -12_124.0, 0.0),
+        v: Vec3::new(2.6679, 4.6210, 0.0),
+    };
     let s = kepler::propagate(&s0, 3600.0, 398_600.0).unwrap();
     close(&s.r, &[-3_297.8, 7_413.4, 0.0], 0.5);
     close(&s.v, &[-8.2976, -0.96404, 0.0], 2e-4);
@@ -62,7 +70,11 @@ fn hohmann(r1: f64, r2: f64) -> (f64, f64, f64) {
     let v1 = (MU_SUN / r1).sqrt() * ((2.0 * r2 / (r1 + r2)).sqrt() - 1.0);
     let v2 = (MU_SUN / r2).sqrt() * (1.0 - (2.0 * r1 / (r1 + r2)).sqrt());
     let a = 0.5 * (r1 + r2);
-    (v1, v2, std::f64::consts::PI * (a * a * a / MU_SUN).sqrt() / 86_400.0)
+    (
+        v1,
+        v2,
+        std::f64::consts::PI * (a * a * a / MU_SUN).sqrt() / 86_400.0,
+    )
 }
 
 #[test]
@@ -72,7 +84,10 @@ fn hohmann_figures_and_lambert_at_180_degrees() {
     for (ra, v1e, v2e, te) in [(1.5237, 2.945, 2.649, 258.9), (5.2034, 8.793, 5.643, 997.0)] {
         let (r1, r2) = (AU_KM, ra * AU_KM);
         let (v1, v2, t) = hohmann(r1, r2);
-        assert!((v1 - v1e).abs() < 1e-3 && (v2 - v2e).abs() < 1e-3, "{v1} {v2}");
+        assert!(
+            (v1 - v1e).abs() < 1e-3 && (v2 - v2e).abs() < 1e-3,
+            "{v1} {v2}"
+        );
         assert!((t - te).abs() < 1.0, "{t}");
         // The engine's Lambert reproduces the formula on the exact 180° geometry (collinear input,
         // plane taken as the ecliptic).
@@ -122,7 +137,12 @@ fn lambert_multi_revolution_solutions_cover_both_branches() {
     assert!(max_rev >= 1);
     for s in sols.as_slice() {
         let end = kepler::propagate(&State { r: r1, v: s.v1 }, tof, mu).unwrap();
-        assert!((end.r - r2).norm() / r2.norm() < 1e-9, "rev {} {:?}", s.revs, s.branch);
+        assert!(
+            (end.r - r2).norm() / r2.norm() < 1e-9,
+            "rev {} {:?}",
+            s.revs,
+            s.branch
+        );
         assert!((end.v - s.v2).norm() < 1e-8);
     }
     for n in 1..=max_rev {
@@ -131,8 +151,12 @@ fn lambert_multi_revolution_solutions_cover_both_branches() {
         assert!(l.x < r.x);
     }
     // Asking for more revolutions than the TOF allows is a typed error, not NaN.
-    let err = lambert::solve_revs(&r1, &r2, tof, mu, Direction::Prograde, 7, Branch::Left).unwrap_err();
-    assert!(matches!(err, LambertError::TooManyRevolutions { requested: 7, .. }));
+    let err =
+        lambert::solve_revs(&r1, &r2, tof, mu, Direction::Prograde, 7, Branch::Left).unwrap_err();
+    assert!(matches!(
+        err,
+        LambertError::TooManyRevolutions { requested: 7, .. }
+    ));
 }
 
 #[test]
@@ -181,7 +205,11 @@ fn swingby_geometry_curtis_example_8_5() {
     assert_relative_eq!(e, 1.0 + rp * vinf * vinf / mu, max_relative = 1e-15);
     let d = flyby::turn_angle(rp, vinf, mu);
     assert_relative_eq!(d, 2.0 * (1.0 / e).asin(), max_relative = 1e-15);
-    assert_relative_eq!(flyby::periapsis_for_turn(d, vinf, mu).unwrap(), rp, max_relative = 1e-12);
+    assert_relative_eq!(
+        flyby::periapsis_for_turn(d, vinf, mu).unwrap(),
+        rp,
+        max_relative = 1e-12
+    );
 }
 
 #[test]
@@ -192,14 +220,20 @@ fn unpowered_swingby_preserves_vinf_and_turns_by_delta() {
         for rp in [6_400.0, 10_000.0, 60_000.0] {
             let vout = flyby::outgoing_vinf(&vin, rp, aim, mu);
             assert_relative_eq!(vout.norm(), vin.norm(), max_relative = 1e-13);
-            let turn = (vin.dot(&vout) / vin.norm_squared()).clamp(-1.0, 1.0).acos();
+            let turn = (vin.dot(&vout) / vin.norm_squared())
+                .clamp(-1.0, 1.0)
+                .acos();
             assert_relative_eq!(turn, flyby::turn_angle(rp, vin.norm(), mu), epsilon = 1e-12);
             // The B-plane recovered from (v∞ in, v∞ out) gives back the aim angle and |B|.
             let bp = flyby::b_plane(&vin, &vout, rp, mu);
             let d_aim = (bp.aim - aim + std::f64::consts::PI).rem_euclid(std::f64::consts::TAU)
                 - std::f64::consts::PI;
             assert!(d_aim.abs() < 1e-9, "aim {aim} got {}", bp.aim);
-            assert_relative_eq!(bp.b, flyby::b_magnitude(rp, vin.norm(), mu), max_relative = 1e-12);
+            assert_relative_eq!(
+                bp.b,
+                flyby::b_magnitude(rp, vin.norm(), mu),
+                max_relative = 1e-12
+            );
             // Powered model with equal magnitudes finds the same periapsis and no Δv.
             let p = flyby::powered_swingby(&vin, &vout, mu).unwrap();
             assert_relative_eq!(p.rp, rp, max_relative = 1e-9);
@@ -238,7 +272,14 @@ fn energy_change_identity() {
 fn elements_round_trip_for_every_conic() {
     let mu = 398_600.4418;
     for e in [0.0, 0.3, 0.999, 1.0, 1.001, 2.5] {
-        let el = Elements { p: 12_000.0, e, i: 0.6, raan: 1.1, argp: 2.2, nu: 0.9 };
+        let el = Elements {
+            p: 12_000.0,
+            e,
+            i: 0.6,
+            raan: 1.1,
+            argp: 2.2,
+            nu: 0.9,
+        };
         let s = el.to_state(mu).unwrap();
         let back = Elements::from_state(&s, mu).unwrap();
         assert_relative_eq!(back.p, el.p, max_relative = 1e-10);

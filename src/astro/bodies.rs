@@ -87,9 +87,9 @@ impl Planet {
     /// Look a planet up by name or sequence letter (case-insensitive).
     pub fn from_name(s: &str) -> Option<Planet> {
         let s = s.trim();
-        Planet::ALL.into_iter().find(|p| {
-            p.name().eq_ignore_ascii_case(s) || p.letter().eq_ignore_ascii_case(s)
-        })
+        Planet::ALL
+            .into_iter()
+            .find(|p| p.name().eq_ignore_ascii_case(s) || p.letter().eq_ignore_ascii_case(s))
     }
 
     /// Physical data.
@@ -123,5 +123,10 @@ impl Planet {
 
 /// Data of the Sun (for completeness of the catalogue and for drawing).
 pub fn sun_data() -> BodyData {
-    BodyData { mu: MU_SUN, radius_km: R_SUN_KM, min_altitude_km: 0.0, soi_km: f64::INFINITY }
+    BodyData {
+        mu: MU_SUN,
+        radius_km: R_SUN_KM,
+        min_altitude_km: 0.0,
+        soi_km: f64::INFINITY,
+    }
 }

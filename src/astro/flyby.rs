@@ -102,12 +102,22 @@ pub fn b_plane(vinf_in: &Vec3, vinf_out: &Vec3, rp: f64, mu: f64) -> BPlane {
     let perp = -(vout - f.s * f.s.dot(&vout));
     let b = b_magnitude(rp, vinf_in.norm(), mu);
     if perp.norm() < 1e-12 {
-        return BPlane { b_t: b, b_r: 0.0, b, aim: 0.0 };
+        return BPlane {
+            b_t: b,
+            b_r: 0.0,
+            b,
+            aim: 0.0,
+        };
     }
     let bhat = perp.normalize();
     let b_t = b * bhat.dot(&f.t);
     let b_r = b * bhat.dot(&f.r);
-    BPlane { b_t, b_r, b, aim: b_r.atan2(b_t) }
+    BPlane {
+        b_t,
+        b_r,
+        b,
+        aim: b_r.atan2(b_t),
+    }
 }
 
 /// Result of joining two v∞ vectors at one periapsis (the powered swing-by model: an impulse at
@@ -159,7 +169,8 @@ pub fn powered_swingby(vinf_in: &Vec3, vinf_out: &Vec3, mu: f64) -> Option<Power
         let eo = 1.0 + rp / a_o;
         let val = (1.0 / ei).asin() + (1.0 / eo).asin() - delta;
         // d/dr asin(1/e) = −(1/e²)/√(1 − 1/e²) · de/dr
-        let d = -1.0 / (ei * (ei * ei - 1.0).sqrt()) / a_i - 1.0 / (eo * (eo * eo - 1.0).sqrt()) / a_o;
+        let d =
+            -1.0 / (ei * (ei * ei - 1.0).sqrt()) / a_i - 1.0 / (eo * (eo * eo - 1.0).sqrt()) / a_o;
         (val, d * rp) // derivative w.r.t. u = ln r
     };
     // Starting guess: the ballistic answer for the mean v∞.
@@ -174,7 +185,7 @@ pub fn powered_swingby(vinf_in: &Vec3, vinf_out: &Vec3, mu: f64) -> Option<Power
             hi = u;
         }
         let mut nu = u - val / d;
-        if !(nu > lo && nu < hi) || !nu.is_finite() {
+        if !(nu > lo && nu < hi && nu.is_finite()) {
             nu = if lo.is_finite() && hi.is_finite() {
                 0.5 * (lo + hi)
             } else if lo.is_finite() {
@@ -216,7 +227,11 @@ pub struct EnergyChange {
 pub fn energy_change(v_helio_in: &Vec3, v_helio_out: &Vec3) -> EnergyChange {
     let a = v_helio_in.norm();
     let b = v_helio_out.norm();
-    EnergyChange { speed_in: a, speed_out: b, d_energy: 0.5 * (b * b - a * a) }
+    EnergyChange {
+        speed_in: a,
+        speed_out: b,
+        d_energy: 0.5 * (b * b - a * a),
+    }
 }
 
 /// Sample points of the planet-centred hyperbola in its own plane (for drawing the Swing-by

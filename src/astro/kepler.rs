@@ -65,7 +65,10 @@ impl Elements {
         let rp = Vec3::new(r * cnu, r * snu, 0.0);
         let vp = Vec3::new(-sq * snu, sq * (self.e + cnu), 0.0);
         let rot = perifocal_to_inertial(self.raan, self.i, self.argp);
-        Ok(State { r: rot * rp, v: rot * vp })
+        Ok(State {
+            r: rot * rp,
+            v: rot * vp,
+        })
     }
 
     /// Elements of a state vector.
@@ -77,7 +80,9 @@ impl Elements {
         let h = s.r.cross(&s.v);
         let hn = h.norm();
         if hn <= 1e-12 * r * s.v.norm().max(1e-300) {
-            return Err(KeplerError::Degenerate("zero angular momentum (rectilinear motion)"));
+            return Err(KeplerError::Degenerate(
+                "zero angular momentum (rectilinear motion)",
+            ));
         }
         let p = hn * hn / mu;
         let evec = s.v.cross(&h) / mu - s.r / r;
@@ -86,9 +91,17 @@ impl Elements {
         let n = Vec3::new(-h.y, h.x, 0.0);
         let nn = n.norm();
         let small = 1e-11;
-        let raan = if nn > small * hn { n.y.atan2(n.x).rem_euclid(TAU) } else { 0.0 };
+        let raan = if nn > small * hn {
+            n.y.atan2(n.x).rem_euclid(TAU)
+        } else {
+            0.0
+        };
         // Reference direction in the orbit plane: the node line, or x when equatorial.
-        let node_dir = if nn > small * hn { n / nn } else { Vec3::new(1.0, 0.0, 0.0) };
+        let node_dir = if nn > small * hn {
+            n / nn
+        } else {
+            Vec3::new(1.0, 0.0, 0.0)
+        };
         let hhat = h / hn;
         let angle_from = |from: &Vec3, to: &Vec3| -> f64 {
             let c = from.dot(to);
@@ -101,7 +114,14 @@ impl Elements {
         } else {
             (0.0, angle_from(&node_dir, &(s.r / r)))
         };
-        Ok(Elements { p, e, i, raan, argp, nu })
+        Ok(Elements {
+            p,
+            e,
+            i,
+            raan,
+            argp,
+            nu,
+        })
     }
 }
 
@@ -175,7 +195,7 @@ pub fn hyperbolic_anomaly(m: f64, e: f64) -> f64 {
         }
         let fp = e * x.cosh() - 1.0;
         let mut nx = x - f / fp;
-        if !(nx > lo && nx < hi) || !nx.is_finite() {
+        if !(nx > lo && nx < hi && nx.is_finite()) {
             nx = 0.5 * (lo + hi);
         }
         if (nx - x).abs() < 1e-15 * (1.0 + x.abs()) {
@@ -295,7 +315,11 @@ pub fn propagate(s: &State, dt: f64, mu: f64) -> Result<State, KeplerError> {
     }
     // Bracket the root (F is increasing in χ) and iterate Newton safeguarded by bisection
     // (the "rtsafe" scheme): bisect whenever Newton leaves the bracket or fails to halve the step.
-    let (mut lo, mut hi) = if dt > 0.0 { (0.0, f64::NAN) } else { (f64::NAN, 0.0) };
+    let (mut lo, mut hi) = if dt > 0.0 {
+        (0.0, f64::NAN)
+    } else {
+        (f64::NAN, 0.0)
+    };
     if (dt > 0.0 && x <= 0.0) || (dt < 0.0 && x >= 0.0) {
         x = target / r0;
     }
@@ -310,7 +334,11 @@ pub fn propagate(s: &State, dt: f64, mu: f64) -> Result<State, KeplerError> {
             } else {
                 lo = if lo.is_nan() { x } else { lo.max(x) };
             }
-            x = if lo.is_nan() || hi.is_nan() { x * 0.5 } else { 0.5 * (lo + hi) };
+            x = if lo.is_nan() || hi.is_nan() {
+                x * 0.5
+            } else {
+                0.5 * (lo + hi)
+            };
             continue;
         }
         if f == 0.0 {
@@ -364,7 +392,10 @@ pub fn propagate(s: &State, dt: f64, mu: f64) -> Result<State, KeplerError> {
     let rn = r.norm();
     let fdot = sqmu / (rn * r0) * (alpha * x2 * x * sv - x);
     let gdot = 1.0 - x2 / rn * c;
-    Ok(State { r, v: fdot * s.r + gdot * s.v })
+    Ok(State {
+        r,
+        v: fdot * s.r + gdot * s.v,
+    })
 }
 
 /// Specific orbital energy v²/2 − μ/r, km²/s².

@@ -71,7 +71,9 @@ impl LambertSolutions {
     }
     /// The solution with `revs` revolutions on `branch`, if the inputs admit it.
     pub fn get(&self, revs: u32, branch: Branch) -> Option<&LambertSolution> {
-        self.as_slice().iter().find(|s| s.revs == revs && (revs == 0 || s.branch == branch))
+        self.as_slice()
+            .iter()
+            .find(|s| s.revs == revs && (revs == 0 || s.branch == branch))
     }
 }
 
@@ -257,7 +259,7 @@ pub fn solve(
     }
     let r1n = r1.norm();
     let r2n = r2.norm();
-    if !(r1n > 0.0 && r2n > 0.0) || !r1n.is_finite() || !r2n.is_finite() {
+    if !(r1n > 0.0 && r2n > 0.0 && r1n.is_finite() && r2n.is_finite()) {
         return Err(LambertError::ZeroRadius);
     }
     let c = r2 - r1;
@@ -322,7 +324,10 @@ pub fn solve(
         x: 0.0,
         iterations: 0,
     };
-    let mut out = LambertSolutions { n: 0, sols: [dummy; MAX_SOLUTIONS] };
+    let mut out = LambertSolutions {
+        n: 0,
+        sols: [dummy; MAX_SOLUTIONS],
+    };
 
     let gamma = (mu * s / 2.0).sqrt();
     let rho = (r1n - r2n) / cn;
@@ -339,7 +344,14 @@ pub fn solve(
         let vt = gamma * sigma * (y + lambda * x);
         let v1 = vr1 * ir1 + vt / r1n * it1;
         let v2 = vr2 * ir2 + vt / r2n * it2;
-        out.sols[out.n] = LambertSolution { v1, v2, revs, branch, x, iterations: iters };
+        out.sols[out.n] = LambertSolution {
+            v1,
+            v2,
+            revs,
+            branch,
+            x,
+            iterations: iters,
+        };
         out.n += 1;
         true
     };
@@ -374,7 +386,11 @@ fn fix_normal(ir1: &Vec3, guess: &Vec3) -> Vec3 {
     // Project +z onto the plane normal to r1; fall back to a guess when r1 is along z.
     let z = Vec3::new(0.0, 0.0, 1.0);
     let cand = z - ir1 * ir1.dot(&z);
-    if cand.norm() > 1e-8 { cand.normalize() } else { *guess }
+    if cand.norm() > 1e-8 {
+        cand.normalize()
+    } else {
+        *guess
+    }
 }
 
 /// The zero-revolution solution alone (the common case on hot paths).
@@ -387,7 +403,10 @@ pub fn solve_single(
     dir: Direction,
 ) -> Result<LambertSolution, LambertError> {
     let sols = solve(r1, r2, tof, mu, dir, 0)?;
-    sols.as_slice().first().copied().ok_or(LambertError::NoConvergence)
+    sols.as_slice()
+        .first()
+        .copied()
+        .ok_or(LambertError::NoConvergence)
 }
 
 /// The solution with exactly `revs` revolutions on `branch`, or a typed error saying how many
@@ -402,14 +421,20 @@ pub fn solve_revs(
     branch: Branch,
 ) -> Result<LambertSolution, LambertError> {
     if revs as usize > MAX_REVS {
-        return Err(LambertError::TooManyRevolutions { requested: revs, possible: MAX_REVS as u32 });
+        return Err(LambertError::TooManyRevolutions {
+            requested: revs,
+            possible: MAX_REVS as u32,
+        });
     }
     let sols = solve(r1, r2, tof, mu, dir, revs)?;
     match sols.get(revs, branch) {
         Some(s) => Ok(*s),
         None => {
             let possible = sols.as_slice().iter().map(|s| s.revs).max().unwrap_or(0);
-            Err(LambertError::TooManyRevolutions { requested: revs, possible })
+            Err(LambertError::TooManyRevolutions {
+                requested: revs,
+                possible,
+            })
         }
     }
 }

@@ -13,7 +13,7 @@ pub mod time;
 pub type Vec3 = nalgebra::Vector3<f64>;
 
 /// Position (km) and velocity (km/s) in one frame at one instant.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
 pub struct State {
     /// Position, km.
     pub r: Vec3,

@@ -93,7 +93,9 @@ pub struct Epoch {
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 pub enum TimeError {
     /// Text is not an ISO-8601 date.
-    #[error("'{0}' is not a date (expected YYYY-MM-DD or YYYY-MM-DDTHH:MM:SS[.fff] with optional UTC or TDB)")]
+    #[error(
+        "'{0}' is not a date (expected YYYY-MM-DD or YYYY-MM-DDTHH:MM:SS[.fff] with optional UTC or TDB)"
+    )]
     Syntax(String),
     /// A field is out of its range (month 13, day 32, ...).
     #[error("'{0}': {1} out of range")]
@@ -193,7 +195,9 @@ impl Epoch {
 
     /// This epoch shifted by a number of days.
     pub fn plus_days(self, d: f64) -> Self {
-        Epoch { tdb_s: self.tdb_s + d * DAY_S }
+        Epoch {
+            tdb_s: self.tdb_s + d * DAY_S,
+        }
     }
 
     /// The epoch of a UTC calendar date and time of day.
@@ -208,10 +212,19 @@ impl Epoch {
     }
 
     /// The epoch of a TDB calendar date and time of day.
-    pub fn from_tdb_calendar(year: i32, month: u32, day: u32, hour: u32, min: u32, sec: f64) -> Self {
+    pub fn from_tdb_calendar(
+        year: i32,
+        month: u32,
+        day: u32,
+        hour: u32,
+        min: u32,
+        sec: f64,
+    ) -> Self {
         let mjd = mjd_from_calendar(year, month, day);
         let s = hour as f64 * 3600.0 + min as f64 * 60.0 + sec;
-        Epoch { tdb_s: (mjd as f64 + MJD_OFFSET - JD_J2000) * DAY_S + s }
+        Epoch {
+            tdb_s: (mjd as f64 + MJD_OFFSET - JD_J2000) * DAY_S + s,
+        }
     }
 
     /// UTC calendar fields (year, month, day, hour, minute, second) of this epoch.
@@ -288,9 +301,18 @@ impl Epoch {
             None => (body, None),
         };
         let mut parts = date.splitn(3, '-');
-        let y: i32 = parts.next().and_then(|p| p.parse().ok()).ok_or_else(syntax)?;
-        let mo: u32 = parts.next().and_then(|p| p.parse().ok()).ok_or_else(syntax)?;
-        let d: u32 = parts.next().and_then(|p| p.parse().ok()).ok_or_else(syntax)?;
+        let y: i32 = parts
+            .next()
+            .and_then(|p| p.parse().ok())
+            .ok_or_else(syntax)?;
+        let mo: u32 = parts
+            .next()
+            .and_then(|p| p.parse().ok())
+            .ok_or_else(syntax)?;
+        let d: u32 = parts
+            .next()
+            .and_then(|p| p.parse().ok())
+            .ok_or_else(syntax)?;
         if date.len() < 8 {
             return Err(syntax());
         }

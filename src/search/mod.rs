@@ -1,0 +1,10 @@
+//! Search: window maps (porkchop plots), the date optimiser and the sequence explorer. Each runs on
+//! all cores (rayon), is deterministic for a given seed, reports progress and can be cancelled.
+//! All of them score designs through the one `mission::evaluate_into`.
+
+pub mod explore;
+pub mod job;
+pub mod optimize;
+pub mod window;
+
+pub use job::{Job, JobStatus, Progress};

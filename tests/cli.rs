@@ -1,0 +1,191 @@
+//! The command line on the samples and on broken input.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tourwright"))
+}
+
+fn sample(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-missions")
+        .join(name)
+}
+
+#[test]
+fn eval_text_and_json() {
+    let out = bin()
+        .args(["eval"])
+        .arg(sample("tern-saturn-ejs.tour.ron"))
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("Swing-by") && text.contains("Jupiter") && text.contains("C3"));
+    assert!(text.contains("Preliminary design"));
+    let out = bin()
+        .args(["eval", "--json"])
+        .arg(sample("tern-saturn-ejs.tour.ron"))
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["stops"].as_array().unwrap().len(), 3);
+    assert!(v["launch"]["c3_km2_s2"].as_f64().unwrap() > 0.0);
+}
+
+#[test]
+fn compare_and_export() {
+    let dir = tempfile::tempdir().unwrap();
+    let out = bin()
+        .args(["compare"])
+        .arg(sample("wayfarer-belt-em.tour.ron"))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        text.contains("Direct vs assist") && text.contains("The tour "),
+        "{text}"
+    );
+    let csv = dir.path().join("e.csv");
+    let oem = dir.path().join("t.oem");
+    let st = bin()
+        .args(["export"])
+        .arg(sample("lantern-jupiter-evej.tour.ron"))
+        .arg("--csv")
+        .arg(&csv)
+        .arg("--oem")
+        .arg(&oem)
+        .status()
+        .unwrap();
+    assert!(st.success());
+    assert!(
+        std::fs::read_to_string(&csv)
+            .unwrap()
+            .starts_with("stop,kind,body")
+    );
+    assert!(
+        std::fs::read_to_string(&oem)
+            .unwrap()
+            .starts_with("CCSDS_OEM_VERS = 2.0")
+    );
+}
+
+#[test]
+fn broken_input_fails_cleanly() {
+    let dir = tempfile::tempdir().unwrap();
+    let p = dir.path().join("broken.tour.ron");
+    std::fs::write(
+        &p,
+        "(format: \"tourwright-design\",\n version: 1,\n name: \"x\"\n stops: [])",
+    )
+    .unwrap();
+    let out = bin().arg("eval").arg(&p).output().unwrap();
+    assert!(!out.status.success());
+    let err = String::from_utf8(out.stderr).unwrap();
+    assert_eq!(err.lines().count(), 1, "{err}");
+    assert!(err.contains("broken.tour.ron:4:"), "{err}");
+    let out = bin()
+        .arg("eval")
+        .arg(dir.path().join("missing.tour.ron"))
+        .output()
+        .unwrap();
+    assert!(!out.status.success());
+    let out = bin()
+        .args([
+            "window",
+            "--from",
+            "Earth",
+            "--to",
+            "Vulcan",
+            "--depart",
+            "2030-01-01..2030-06-01",
+            "--tof",
+            "100..300",
+        ])
+        .output()
+        .unwrap();
+    assert!(!out.status.success());
+    assert!(String::from_utf8(out.stderr).unwrap().contains("Vulcan"));
+}
+
+#[test]
+fn window_optimize_and_explore_commands() {
+    let dir = tempfile::tempdir().unwrap();
+    let csv = dir.path().join("w.csv");
+    let out = bin()
+        .args([
+            "window",
+            "--from",
+            "Earth",
+            "--to",
+            "Mars",
+            "--depart",
+            "2033-01-01..2033-09-01",
+            "--arrive",
+            "2033-08-01..2034-08-01",
+            "--steps",
+            "40",
+            "--csv",
+        ])
+        .arg(&csv)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert_eq!(
+        std::fs::read_to_string(&csv).unwrap().lines().count(),
+        40 * 40 + 1
+    );
+    let o = dir.path().join("o.tour.ron");
+    let out = bin()
+        .arg("optimize")
+        .arg(sample("tern-saturn-ejs.tour.ron"))
+        .args(["--evals", "4000", "--seed", "3", "--out"])
+        .arg(&o)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(o.exists());
+    let out = bin()
+        .args([
+            "explore",
+            "--from",
+            "E",
+            "--to",
+            "M",
+            "--launch",
+            "2033-01-01..2033-12-31",
+            "--via",
+            "V",
+            "--max-swingbys",
+            "1",
+            "--max-tof-years",
+            "3",
+            "--evals",
+            "3000",
+            "--out",
+        ])
+        .arg(dir.path().join("x"))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(String::from_utf8(out.stdout).unwrap().contains("E-M"));
+}
