@@ -179,13 +179,16 @@ pub fn powered_swingby(vinf_in: &Vec3, vinf_out: &Vec3, mu: f64) -> Option<Power
     let (mut lo, mut hi) = (f64::NEG_INFINITY, f64::INFINITY);
     for _ in 0..200 {
         let (val, d) = f(u.exp());
+        if val == 0.0 {
+            break;
+        }
         if val > 0.0 {
             lo = u;
         } else {
             hi = u;
         }
         let mut nu = u - val / d;
-        if !(nu > lo && nu < hi && nu.is_finite()) {
+        if !(nu >= lo && nu <= hi && nu.is_finite()) {
             nu = if lo.is_finite() && hi.is_finite() {
                 0.5 * (lo + hi)
             } else if lo.is_finite() {

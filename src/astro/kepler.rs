@@ -153,15 +153,19 @@ pub fn eccentric_anomaly(m: f64, e: f64) -> f64 {
     let mut x = m + e * m.sin();
     let (mut lo, mut hi) = if m > 0.0 { (0.0, PI) } else { (-PI, 0.0) };
     for _ in 0..60 {
-        let f = x - e * x.sin() - m;
+        let (s, c) = x.sin_cos();
+        let f = x - e * s - m;
+        if f == 0.0 {
+            return x;
+        }
         if f > 0.0 {
             hi = x;
         } else {
             lo = x;
         }
-        let fp = 1.0 - e * x.cos();
+        let fp = 1.0 - e * c;
         let mut nx = x - f / fp;
-        if !(nx > lo && nx < hi) {
+        if !(nx >= lo && nx <= hi) {
             nx = 0.5 * (lo + hi);
         }
         if (nx - x).abs() < 1e-15 * (1.0 + x.abs()) {
@@ -188,6 +192,9 @@ pub fn hyperbolic_anomaly(m: f64, e: f64) -> f64 {
     let mut x = (2.0 * ma / e + 1.8).ln().min(hi).max(1e-3 * hi);
     for _ in 0..100 {
         let f = e * x.sinh() - x - ma;
+        if f == 0.0 {
+            return sgn * x;
+        }
         if f > 0.0 {
             hi = x;
         } else {
@@ -195,7 +202,7 @@ pub fn hyperbolic_anomaly(m: f64, e: f64) -> f64 {
         }
         let fp = e * x.cosh() - 1.0;
         let mut nx = x - f / fp;
-        if !(nx > lo && nx < hi && nx.is_finite()) {
+        if !(nx >= lo && nx <= hi && nx.is_finite()) {
             nx = 0.5 * (lo + hi);
         }
         if (nx - x).abs() < 1e-15 * (1.0 + x.abs()) {

@@ -21,10 +21,22 @@ use super::{lens::LensState, search_panel::SearchState, sun::SunViewState};
 
 /// Sample designs shipped inside the program (file name, text).
 pub const SAMPLES: [(&str, &str); 4] = [
-    ("lantern-jupiter-evej.tour.ron", include_str!("../../sample-missions/lantern-jupiter-evej.tour.ron")),
-    ("tern-saturn-ejs.tour.ron", include_str!("../../sample-missions/tern-saturn-ejs.tour.ron")),
-    ("wayfarer-belt-em.tour.ron", include_str!("../../sample-missions/wayfarer-belt-em.tour.ron")),
-    ("ember-mercury-evvme.tour.ron", include_str!("../../sample-missions/ember-mercury-evvme.tour.ron")),
+    (
+        "lantern-jupiter-evej.tour.ron",
+        include_str!("../../sample-missions/lantern-jupiter-evej.tour.ron"),
+    ),
+    (
+        "tern-saturn-ejs.tour.ron",
+        include_str!("../../sample-missions/tern-saturn-ejs.tour.ron"),
+    ),
+    (
+        "wayfarer-belt-em.tour.ron",
+        include_str!("../../sample-missions/wayfarer-belt-em.tour.ron"),
+    ),
+    (
+        "ember-mercury-evvme.tour.ron",
+        include_str!("../../sample-missions/ember-mercury-evvme.tour.ron"),
+    ),
 ];
 
 /// The central views.
@@ -44,7 +56,13 @@ pub enum View {
 
 impl View {
     /// All views in tab order.
-    pub const ALL: [View; 5] = [View::Sun, View::Lens, View::Ladder, View::Direct, View::Window];
+    pub const ALL: [View; 5] = [
+        View::Sun,
+        View::Lens,
+        View::Ladder,
+        View::Direct,
+        View::Window,
+    ];
     /// Tab title.
     pub fn title(self) -> &'static str {
         match self {
@@ -111,7 +129,14 @@ pub struct Settings {
 
 impl Default for Settings {
     fn default() -> Self {
-        Settings { dark: true, recent: vec![], show_tour: true, show_ledger: true, show_search: false, view: View::Sun }
+        Settings {
+            dark: true,
+            recent: vec![],
+            show_tour: true,
+            show_ledger: true,
+            show_search: false,
+            view: View::Sun,
+        }
     }
 }
 
@@ -225,7 +250,8 @@ impl TourwrightApp {
             window: WindowViewState::default(),
             search: SearchState::default(),
             frame_ms: 0.0,
-            frame_log: std::env::var_os("TOURWRIGHT_FRAME_STATS").map(|_| (Instant::now(), Vec::new())),
+            frame_log: std::env::var_os("TOURWRIGHT_FRAME_STATS")
+                .map(|_| (Instant::now(), Vec::new())),
             close_confirmed: false,
             screenshot_to: None,
             shot_result: Arc::new(Mutex::new(None)),
@@ -245,7 +271,10 @@ impl TourwrightApp {
 
     /// Start from the command line's file, the last file opened, or a sample.
     pub fn new(cc: &eframe::CreationContext<'_>, file: Option<PathBuf>) -> Self {
-        let settings: Settings = cc.storage.and_then(|s| eframe::get_value(s, "tourwright.settings")).unwrap_or_default();
+        let settings: Settings = cc
+            .storage
+            .and_then(|s| eframe::get_value(s, "tourwright.settings"))
+            .unwrap_or_default();
         let mut tried_err = None;
         let candidate = file.or_else(|| settings.recent.first().cloned());
         if let Some(p) = candidate {
@@ -263,7 +292,11 @@ impl TourwrightApp {
     }
 
     fn select_first_swingby(&mut self) {
-        self.selected = if self.doc.design.stops.len() > 2 { 1 } else { 0 };
+        self.selected = if self.doc.design.stops.len() > 2 {
+            1
+        } else {
+            0
+        };
     }
 
     /// Re-evaluate when the design changed.
@@ -286,7 +319,12 @@ impl TourwrightApp {
             .and_then(|p| p.file_name())
             .map(|f| f.to_string_lossy().to_string())
             .unwrap_or_else(|| "not saved".into());
-        format!("{}{} — {} — Tourwright", if self.doc.is_dirty() { "* " } else { "" }, self.doc.design.name, file)
+        format!(
+            "{}{} — {} — Tourwright",
+            if self.doc.is_dirty() { "* " } else { "" },
+            self.doc.design.name,
+            file
+        )
     }
 
     // ----- file actions -------------------------------------------------------------------
@@ -341,7 +379,9 @@ impl TourwrightApp {
                 self.remember(p);
             }
             Err(e) => {
-                self.error = Some(format!("The file could not be opened; your current design is unchanged.\n\n{e}"));
+                self.error = Some(format!(
+                    "The file could not be opened; your current design is unchanged.\n\n{e}"
+                ));
             }
         }
     }
@@ -383,7 +423,9 @@ impl TourwrightApp {
 
     /// Write an export.
     pub fn export(&mut self, purpose: PathPurpose) {
-        let Some(p) = self.pick_file(purpose) else { return };
+        let Some(p) = self.pick_file(purpose) else {
+            return;
+        };
         self.export_to(purpose, &p);
     }
 
@@ -397,7 +439,10 @@ impl TourwrightApp {
             PathPurpose::SamplesCsv => export::samples_csv(e),
             PathPurpose::Oem => {
                 if !e.complete {
-                    self.error = Some("The design has legs with no solution; there is no trajectory to export.".into());
+                    self.error = Some(
+                        "The design has legs with no solution; there is no trajectory to export."
+                            .into(),
+                    );
                     return;
                 }
                 export::oem(d, e, crate::cli::now())
@@ -423,20 +468,34 @@ impl TourwrightApp {
         let t = Instant::now();
         let base = rfd::FileDialog::new();
         let dlg = match purpose {
-            PathPurpose::Open | PathPurpose::SaveAs => base.add_filter("Tourwright design", &["ron"]),
-            PathPurpose::EventsCsv | PathPurpose::LedgerCsv | PathPurpose::SamplesCsv => base.add_filter("CSV", &["csv"]),
+            PathPurpose::Open | PathPurpose::SaveAs => {
+                base.add_filter("Tourwright design", &["ron"])
+            }
+            PathPurpose::EventsCsv | PathPurpose::LedgerCsv | PathPurpose::SamplesCsv => {
+                base.add_filter("CSV", &["csv"])
+            }
             PathPurpose::Oem => base.add_filter("CCSDS OEM", &["oem", "txt"]),
             PathPurpose::Picture => base.add_filter("PNG picture", &["png"]),
         };
         let name = self.default_path(purpose);
         let chosen = match purpose {
             PathPurpose::Open => dlg.pick_file(),
-            _ => dlg.set_file_name(Path::new(&name).file_name().map(|f| f.to_string_lossy().to_string()).unwrap_or_default()).save_file(),
+            _ => dlg
+                .set_file_name(
+                    Path::new(&name)
+                        .file_name()
+                        .map(|f| f.to_string_lossy().to_string())
+                        .unwrap_or_default(),
+                )
+                .save_file(),
         };
         if chosen.is_none() && t.elapsed().as_millis() < 150 {
             // No dialog service answered (a person takes longer than that to cancel).
             self.native_dialogs = false;
-            self.status = Some(("No native file dialog is available here; type a path instead.".into(), true));
+            self.status = Some((
+                "No native file dialog is available here; type a path instead.".into(),
+                true,
+            ));
             self.path_prompt = Some((purpose, name));
         }
         chosen
@@ -448,9 +507,20 @@ impl TourwrightApp {
             .design
             .name
             .chars()
-            .map(|c| if c.is_alphanumeric() { c.to_ascii_lowercase() } else { '-' })
+            .map(|c| {
+                if c.is_alphanumeric() {
+                    c.to_ascii_lowercase()
+                } else {
+                    '-'
+                }
+            })
             .collect();
-        let dir = self.doc.path.as_ref().and_then(|p| p.parent().map(Path::to_path_buf)).unwrap_or_else(|| PathBuf::from("."));
+        let dir = self
+            .doc
+            .path
+            .as_ref()
+            .and_then(|p| p.parent().map(Path::to_path_buf))
+            .unwrap_or_else(|| PathBuf::from("."));
         let file = match purpose {
             PathPurpose::Open => return dir.to_string_lossy().to_string() + "/",
             PathPurpose::SaveAs => format!("{stem}.tour.ron"),
@@ -458,7 +528,10 @@ impl TourwrightApp {
             PathPurpose::LedgerCsv => format!("{stem}-ledger.csv"),
             PathPurpose::SamplesCsv => format!("{stem}-trajectory.csv"),
             PathPurpose::Oem => format!("{stem}.oem"),
-            PathPurpose::Picture => format!("{stem}-{}.png", self.settings.view.title().to_lowercase().replace(' ', "-")),
+            PathPurpose::Picture => format!(
+                "{stem}-{}.png",
+                self.settings.view.title().to_lowercase().replace(' ', "-")
+            ),
         };
         dir.join(file).to_string_lossy().to_string()
     }
@@ -479,7 +552,11 @@ impl TourwrightApp {
         let t0 = Instant::now();
         let ctx = ui.ctx().clone();
         if self.theme_applied != Some(self.settings.dark) {
-            ctx.set_theme(if self.settings.dark { egui::Theme::Dark } else { egui::Theme::Light });
+            ctx.set_theme(if self.settings.dark {
+                egui::Theme::Dark
+            } else {
+                egui::Theme::Light
+            });
             self.theme_applied = Some(self.settings.dark);
         }
         self.shortcuts(&ctx);
@@ -489,17 +566,26 @@ impl TourwrightApp {
         egui::Panel::top("menu").show(ui, |ui| self.menu_bar(ui));
         egui::Panel::bottom("status").show(ui, |ui| self.status_bar(ui));
         if self.settings.show_ledger {
-            egui::Panel::bottom("ledger").resizable(true).default_size(190.0).show(ui, |ui| self.ledger(ui));
+            egui::Panel::bottom("ledger")
+                .resizable(true)
+                .default_size(190.0)
+                .show(ui, |ui| self.ledger(ui));
         }
         if self.settings.show_tour {
-            egui::Panel::left("tour").resizable(true).default_size(340.0).show(ui, |ui| {
-                egui::ScrollArea::vertical().show(ui, |ui| self.tour_panel(ui));
-            });
+            egui::Panel::left("tour")
+                .resizable(true)
+                .default_size(340.0)
+                .show(ui, |ui| {
+                    egui::ScrollArea::vertical().show(ui, |ui| self.tour_panel(ui));
+                });
         }
         if self.settings.show_search {
-            egui::Panel::right("search").resizable(true).default_size(330.0).show(ui, |ui| {
-                egui::ScrollArea::vertical().show(ui, |ui| self.search_panel(ui));
-            });
+            egui::Panel::right("search")
+                .resizable(true)
+                .default_size(330.0)
+                .show(ui, |ui| {
+                    egui::ScrollArea::vertical().show(ui, |ui| self.search_panel(ui));
+                });
         }
         self.refresh();
         egui::CentralPanel::default_margins().show(ui, |ui| {
@@ -533,14 +619,21 @@ impl TourwrightApp {
             self.status = Some((msg, false));
         }
         let ms = t0.elapsed().as_secs_f32() * 1000.0;
-        self.frame_ms = if self.frame_ms == 0.0 { ms } else { 0.9 * self.frame_ms + 0.1 * ms };
+        self.frame_ms = if self.frame_ms == 0.0 {
+            ms
+        } else {
+            0.9 * self.frame_ms + 0.1 * ms
+        };
         if let Some((start, v)) = &mut self.frame_log {
             v.push(ms);
             if start.elapsed().as_secs_f32() > 2.0 {
                 let dt = ctx.input(|i| i.unstable_dt) * 1000.0;
                 let mean = v.iter().sum::<f32>() / v.len() as f32;
                 let max = v.iter().cloned().fold(0.0, f32::max);
-                eprintln!("frame stats: {} frames, ui build mean {mean:.2} ms max {max:.2} ms, last frame interval {dt:.1} ms", v.len());
+                eprintln!(
+                    "frame stats: {} frames, ui build mean {mean:.2} ms max {max:.2} ms, last frame interval {dt:.1} ms",
+                    v.len()
+                );
                 *start = Instant::now();
                 v.clear();
             }
@@ -579,7 +672,10 @@ impl TourwrightApp {
     }
 
     fn handle_close(&mut self, ctx: &egui::Context) {
-        if ctx.input(|i| i.viewport().close_requested()) && !self.close_confirmed && self.doc.is_dirty() {
+        if ctx.input(|i| i.viewport().close_requested())
+            && !self.close_confirmed
+            && self.doc.is_dirty()
+        {
             ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
             self.confirm = Some(Pending::Quit);
         }
@@ -592,7 +688,8 @@ impl TourwrightApp {
         let cmd = Modifiers::COMMAND;
         let cmd_shift = Modifiers::COMMAND | Modifiers::SHIFT;
         let (redo, undo, new, open, save_as, save) = ctx.input_mut(|i| {
-            let redo = i.consume_shortcut(&KeyboardShortcut::new(cmd_shift, Key::Z)) || i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::Y));
+            let redo = i.consume_shortcut(&KeyboardShortcut::new(cmd_shift, Key::Z))
+                || i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::Y));
             let undo = i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::Z));
             let new = i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::N));
             let open = i.consume_shortcut(&KeyboardShortcut::new(cmd, Key::O));
@@ -627,7 +724,10 @@ impl TourwrightApp {
                 GuiJob::Direct(mut j, rev) => match j.poll() {
                     JobStatus::Running => keep.push(GuiJob::Direct(j, rev)),
                     JobStatus::Done(Some(c)) => self.direct = Some((c, rev)),
-                    JobStatus::Done(None) => self.status = Some(("no direct transfer found in the launch period".into(), true)),
+                    JobStatus::Done(None) => {
+                        self.status =
+                            Some(("no direct transfer found in the launch period".into(), true))
+                    }
                     JobStatus::Failed(m) => self.status = Some((m, true)),
                 },
                 GuiJob::Window(mut j) => match j.poll() {
@@ -636,13 +736,21 @@ impl TourwrightApp {
                         self.window.map = Some(m);
                         self.window.view = None;
                     }
-                    JobStatus::Done(None) => self.status = Some(("window map cancelled".into(), false)),
+                    JobStatus::Done(None) => {
+                        self.status = Some(("window map cancelled".into(), false))
+                    }
                     JobStatus::Failed(m) => self.status = Some((m, true)),
                 },
                 GuiJob::Optimize(mut j, rev) => match j.poll() {
                     JobStatus::Running => keep.push(GuiJob::Optimize(j, rev)),
                     JobStatus::Done(r) => {
-                        self.status = Some((format!("optimiser finished: {:.4} after {} evaluations", r.value, r.evaluations), false));
+                        self.status = Some((
+                            format!(
+                                "optimiser finished: {:.4} after {} evaluations",
+                                r.value, r.evaluations
+                            ),
+                            false,
+                        ));
                         self.search.opt_result = Some((r, rev));
                     }
                     JobStatus::Failed(m) => self.status = Some((m, true)),
@@ -720,11 +828,20 @@ impl TourwrightApp {
                 }
             });
             ui.menu_button("Edit", |ui| {
-                if ui.add_enabled(self.doc.can_undo(), egui::Button::new("Undo   Ctrl+Z")).clicked() {
+                if ui
+                    .add_enabled(self.doc.can_undo(), egui::Button::new("Undo   Ctrl+Z"))
+                    .clicked()
+                {
                     self.doc.undo();
                     ui.close();
                 }
-                if ui.add_enabled(self.doc.can_redo(), egui::Button::new("Redo   Ctrl+Shift+Z")).clicked() {
+                if ui
+                    .add_enabled(
+                        self.doc.can_redo(),
+                        egui::Button::new("Redo   Ctrl+Shift+Z"),
+                    )
+                    .clicked()
+                {
                     self.doc.redo();
                     ui.close();
                 }
@@ -735,7 +852,10 @@ impl TourwrightApp {
                 ui.checkbox(&mut self.settings.show_search, "Search panel");
                 ui.separator();
                 for v in View::ALL {
-                    if ui.radio_value(&mut self.settings.view, v, v.title()).clicked() {
+                    if ui
+                        .radio_value(&mut self.settings.view, v, v.title())
+                        .clicked()
+                    {
                         ui.close();
                     }
                 }
@@ -744,7 +864,12 @@ impl TourwrightApp {
                 ui.radio_value(&mut self.settings.dark, false, "Light theme");
             });
             ui.menu_button("Help", |ui| {
-                for t in ["Units and conventions", "Keyboard shortcuts", "Preliminary-design caution", "About Tourwright"] {
+                for t in [
+                    "Units and conventions",
+                    "Keyboard shortcuts",
+                    "Preliminary-design caution",
+                    "About Tourwright",
+                ] {
                     if ui.button(t).clicked() {
                         self.help = Some(t);
                         ui.close();
@@ -761,21 +886,40 @@ impl TourwrightApp {
             if n == 0 {
                 ui.label(RichText::new("no warnings").color(Color32::from_rgb(0x4C, 0xAF, 0x7A)));
             } else {
-                ui.label(RichText::new(format!("! {n} warning{}: {}", if n > 1 { "s" } else { "" }, self.eval.warnings[0])).color(super::style::warn_color(dark)));
+                ui.label(
+                    RichText::new(format!(
+                        "! {n} warning{}: {}",
+                        if n > 1 { "s" } else { "" },
+                        self.eval.warnings[0]
+                    ))
+                    .color(super::style::warn_color(dark)),
+                );
             }
             if let Some((m, err)) = &self.status {
                 ui.separator();
-                ui.label(if *err { RichText::new(m).color(super::style::error_color(dark)) } else { RichText::new(m) });
+                ui.label(if *err {
+                    RichText::new(m).color(super::style::error_color(dark))
+                } else {
+                    RichText::new(m)
+                });
             }
             ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
                 ui.label(RichText::new(format!("frame {:.1} ms", self.frame_ms)).weak());
                 let mut cancel = None;
                 for (i, j) in self.jobs.iter().enumerate() {
                     let (label, frac, best) = j.progress();
-                    if ui.small_button("x").on_hover_text("Cancel this job").clicked() {
+                    if ui
+                        .small_button("x")
+                        .on_hover_text("Cancel this job")
+                        .clicked()
+                    {
                         cancel = Some(i);
                     }
-                    let text = if best.is_finite() { format!("{label}: best {best:.4}") } else { label.to_string() };
+                    let text = if best.is_finite() {
+                        format!("{label}: best {best:.4}")
+                    } else {
+                        label.to_string()
+                    };
                     ui.add(egui::ProgressBar::new(frac).desired_width(160.0).text(text));
                 }
                 if let Some(i) = cancel {
@@ -799,7 +943,10 @@ impl TourwrightApp {
         if let Some(action) = self.confirm.clone() {
             egui::Modal::new(egui::Id::unique("confirm")).show(ctx, |ui| {
                 ui.heading("Unsaved changes");
-                ui.label(format!("“{}” has changes that are not saved.", self.doc.design.name));
+                ui.label(format!(
+                    "“{}” has changes that are not saved.",
+                    self.doc.design.name
+                ));
                 ui.horizontal(|ui| {
                     if ui.button("Save first").clicked() {
                         self.confirm = None;
@@ -849,9 +996,12 @@ impl TourwrightApp {
         }
         if let Some(topic) = self.help {
             let mut open = true;
-            egui::Window::new(topic).open(&mut open).default_width(520.0).show(ctx, |ui| {
-                ui.label(help_text(topic, self.frame_ms));
-            });
+            egui::Window::new(topic)
+                .open(&mut open)
+                .default_width(520.0)
+                .show(ctx, |ui| {
+                    ui.label(help_text(topic, self.frame_ms));
+                });
             if !open {
                 self.help = None;
             }
@@ -872,7 +1022,9 @@ impl eframe::App for TourwrightApp {
 /// The design of an embedded sample, with the repository path when the file is there.
 pub fn sample_design(i: usize) -> (MissionDesign, Option<PathBuf>) {
     let (name, text) = SAMPLES[i.min(SAMPLES.len() - 1)];
-    let on_disk = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-missions").join(name);
+    let on_disk = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("sample-missions")
+        .join(name);
     let d = files::from_str(text, Path::new(name)).expect("embedded samples are valid (tested)");
     (d, on_disk.exists().then_some(on_disk))
 }

@@ -26,7 +26,11 @@ impl Document {
     /// A document for a design read from `path` (or new when `None`).
     pub fn new(design: MissionDesign, path: Option<PathBuf>) -> Self {
         Document {
-            saved: if path.is_some() { design.clone() } else { MissionDesign::new_blank() },
+            saved: if path.is_some() {
+                design.clone()
+            } else {
+                MissionDesign::new_blank()
+            },
             design,
             path,
             undo: Vec::new(),
@@ -134,7 +138,11 @@ impl Document {
 
     /// True when there is something to undo.
     pub fn can_undo(&self) -> bool {
-        !self.undo.is_empty() || self.gesture_start.as_ref().is_some_and(|g| *g != self.design)
+        !self.undo.is_empty()
+            || self
+                .gesture_start
+                .as_ref()
+                .is_some_and(|g| *g != self.design)
     }
 
     /// True when there is something to redo.

@@ -3,7 +3,9 @@
 //! along the arcs, and v∞ at each stop.
 
 use eframe::egui::{self, RichText};
-use egui_plot::{HLine, Legend, Line, LineStyle, MarkerShape, Plot, PlotPoint, PlotPoints, Points, Text};
+use egui_plot::{
+    HLine, Legend, Line, LineStyle, MarkerShape, Plot, PlotPoint, PlotPoints, Points, Text,
+};
 
 use crate::astro::constants::MU_SUN;
 use crate::mission::evaluate::StopKind;
@@ -28,7 +30,11 @@ impl TourwrightApp {
             .x_axis_label("days from launch")
             .y_axis_label("energy (km²/s²)")
             .show(ui, |pl| {
-                pl.hline(HLine::new("escape (zero energy)", 0.0).style(LineStyle::dashed_loose()).color(style::SUN));
+                pl.hline(
+                    HLine::new("escape (zero energy)", 0.0)
+                        .style(LineStyle::dashed_loose())
+                        .color(style::SUN),
+                );
                 for (k, leg) in e.legs.iter().enumerate() {
                     let pts = &e.samples[leg.samples.clone()];
                     if pts.is_empty() {
@@ -37,21 +43,37 @@ impl TourwrightApp {
                     // Energy is constant on a two-body arc: draw it from the samples (it shows flat).
                     let series: Vec<[f64; 2]> = pts
                         .iter()
-                        .map(|s| [s.t.days() - t0, 0.5 * s.state.v.norm_squared() - MU_SUN / s.state.r.norm()])
+                        .map(|s| {
+                            [
+                                s.t.days() - t0,
+                                0.5 * s.state.v.norm_squared() - MU_SUN / s.state.r.norm(),
+                            ]
+                        })
                         .collect();
-                    pl.line(Line::new(format!("leg {}", k + 1), PlotPoints::from(series)).color(style::leg_color(k)).width(3.0));
+                    pl.line(
+                        Line::new(format!("leg {}", k + 1), PlotPoints::from(series))
+                            .color(style::leg_color(k))
+                            .width(3.0),
+                    );
                 }
                 for (k, s) in e.stops.iter().enumerate() {
                     let x = s.epoch.days() - t0;
                     if s.kind == StopKind::SwingBy {
                         pl.line(
-                            Line::new("", PlotPoints::from(vec![[x, s.energy_before], [x, s.energy_after]]))
-                                .color(style::body_color(&d.stops[k].body))
-                                .width(2.0)
-                                .style(LineStyle::dotted_dense()),
+                            Line::new(
+                                "",
+                                PlotPoints::from(vec![[x, s.energy_before], [x, s.energy_after]]),
+                            )
+                            .color(style::body_color(&d.stops[k].body))
+                            .width(2.0)
+                            .style(LineStyle::dotted_dense()),
                         );
                     }
-                    let y = if s.kind == StopKind::Arrival { s.energy_before } else { s.energy_after };
+                    let y = if s.kind == StopKind::Arrival {
+                        s.energy_before
+                    } else {
+                        s.energy_after
+                    };
                     pl.points(
                         Points::new(d.stops[k].body.clone(), PlotPoints::from(vec![[x, y]]))
                             .shape(match s.kind {
@@ -62,12 +84,19 @@ impl TourwrightApp {
                             .radius(6.0)
                             .color(style::body_color(&d.stops[k].body)),
                     );
-                    let vinf = if k == 0 { s.vinf_out.norm() } else { s.vinf_in.norm() };
+                    let vinf = if k == 0 {
+                        s.vinf_out.norm()
+                    } else {
+                        s.vinf_in.norm()
+                    };
                     let mut label = format!("{} v∞ {:.2}", d.stops[k].body, vinf);
                     if s.kind == StopKind::SwingBy {
                         label.push_str(&format!("\nΔE {:+.1}", s.gain()));
                     }
-                    pl.text(Text::new("", PlotPoint::new(x, y), label).anchor(egui::Align2::LEFT_BOTTOM));
+                    pl.text(
+                        Text::new("", PlotPoint::new(x, y), label)
+                            .anchor(egui::Align2::LEFT_BOTTOM),
+                    );
                 }
             });
         Plot::new("speed-ladder")
@@ -77,18 +106,49 @@ impl TourwrightApp {
             .y_axis_label("speed (km/s)")
             .show(ui, |pl| {
                 for (k, leg) in e.legs.iter().enumerate() {
-                    let series: Vec<[f64; 2]> = e.samples[leg.samples.clone()].iter().map(|s| [s.t.days() - t0, s.state.v.norm()]).collect();
-                    pl.line(Line::new(format!("heliocentric speed, leg {}", k + 1), PlotPoints::from(series)).color(style::leg_color(k)).width(2.0));
+                    let series: Vec<[f64; 2]> = e.samples[leg.samples.clone()]
+                        .iter()
+                        .map(|s| [s.t.days() - t0, s.state.v.norm()])
+                        .collect();
+                    pl.line(
+                        Line::new(
+                            format!("heliocentric speed, leg {}", k + 1),
+                            PlotPoints::from(series),
+                        )
+                        .color(style::leg_color(k))
+                        .width(2.0),
+                    );
                 }
-                let escape: Vec<[f64; 2]> = e.samples.iter().map(|s| [s.t.days() - t0, (2.0 * MU_SUN / s.state.r.norm()).sqrt()]).collect();
-                pl.line(Line::new("local solar escape speed", PlotPoints::from(escape)).color(style::SUN).style(LineStyle::dashed_loose()));
+                let escape: Vec<[f64; 2]> = e
+                    .samples
+                    .iter()
+                    .map(|s| [s.t.days() - t0, (2.0 * MU_SUN / s.state.r.norm()).sqrt()])
+                    .collect();
+                pl.line(
+                    Line::new("local solar escape speed", PlotPoints::from(escape))
+                        .color(style::SUN)
+                        .style(LineStyle::dashed_loose()),
+                );
                 let vinf: Vec<[f64; 2]> = e
                     .stops
                     .iter()
                     .enumerate()
-                    .map(|(k, s)| [s.epoch.days() - t0, if k == 0 { s.vinf_out.norm() } else { s.vinf_in.norm() }])
+                    .map(|(k, s)| {
+                        [
+                            s.epoch.days() - t0,
+                            if k == 0 {
+                                s.vinf_out.norm()
+                            } else {
+                                s.vinf_in.norm()
+                            },
+                        ]
+                    })
                     .collect();
-                pl.points(Points::new("v∞ at stops", PlotPoints::from(vinf)).shape(MarkerShape::Circle).radius(5.0));
+                pl.points(
+                    Points::new("v∞ at stops", PlotPoints::from(vinf))
+                        .shape(MarkerShape::Circle)
+                        .radius(5.0),
+                );
             });
     }
 }

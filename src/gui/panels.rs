@@ -13,7 +13,11 @@ use super::app::TourwrightApp;
 use super::style;
 
 fn fmt(x: f64, p: usize) -> String {
-    if x.is_finite() && x.abs() < 1e15 { format!("{x:.p$}") } else { "—".into() }
+    if x.is_finite() && x.abs() < 1e15 {
+        format!("{x:.p$}")
+    } else {
+        "—".into()
+    }
 }
 
 impl TourwrightApp {
@@ -53,22 +57,31 @@ impl TourwrightApp {
             ui.push_id(("stop", k), |ui| {
                 let frame = egui::Frame::group(ui.style()).stroke(egui::Stroke::new(
                     if selected { 2.0 } else { 1.0 },
-                    if selected { style::leg_color(k.saturating_sub(1)) } else { ui.visuals().widgets.noninteractive.bg_stroke.color },
+                    if selected {
+                        style::leg_color(k.saturating_sub(1))
+                    } else {
+                        ui.visuals().widgets.noninteractive.bg_stroke.color
+                    },
                 ));
                 frame.show(ui, |ui| {
                     let header = format!("{} {} — {}", k + 1, kind.label(), stop.body);
-                    if ui.selectable_label(selected, RichText::new(header).strong()).clicked() {
+                    if ui
+                        .selectable_label(selected, RichText::new(header).strong())
+                        .clicked()
+                    {
                         self.selected = k;
                     }
                     // Body.
                     ui.horizontal(|ui| {
                         ui.label("Body");
                         let mut body = stop.body.clone();
-                        egui::ComboBox::from_id_salt("body").selected_text(body.clone()).show_ui(ui, |ui| {
-                            for nm in &names {
-                                ui.selectable_value(&mut body, nm.clone(), nm);
-                            }
-                        });
+                        egui::ComboBox::from_id_salt("body")
+                            .selected_text(body.clone())
+                            .show_ui(ui, |ui| {
+                                for nm in &names {
+                                    ui.selectable_value(&mut body, nm.clone(), nm);
+                                }
+                            });
                         if body != stop.body {
                             self.doc.edit(|d| d.stops[k].body = body.clone());
                         }
@@ -78,16 +91,30 @@ impl TourwrightApp {
                         self.swingby_rows(ui, k);
                     }
                     ui.horizontal(|ui| {
-                        if ui.small_button("+ after").on_hover_text("Insert a stop after this one").clicked() {
+                        if ui
+                            .small_button("+ after")
+                            .on_hover_text("Insert a stop after this one")
+                            .clicked()
+                        {
                             action = Some((k, "add"));
                         }
                         if n > 2 && ui.small_button("remove").clicked() {
                             action = Some((k, "remove"));
                         }
-                        if k > 0 && ui.small_button("up").on_hover_text("Move earlier in the sequence").clicked() {
+                        if k > 0
+                            && ui
+                                .small_button("up")
+                                .on_hover_text("Move earlier in the sequence")
+                                .clicked()
+                        {
                             action = Some((k, "up"));
                         }
-                        if k + 1 < n && ui.small_button("down").on_hover_text("Move later in the sequence").clicked() {
+                        if k + 1 < n
+                            && ui
+                                .small_button("down")
+                                .on_hover_text("Move later in the sequence")
+                                .clicked()
+                        {
                             action = Some((k, "down"));
                         }
                     });
@@ -101,9 +128,13 @@ impl TourwrightApp {
             self.stop_action(k, what);
         }
         ui.add_space(6.0);
-        egui::CollapsingHeader::new("Arrival goal").default_open(true).show(ui, |ui| self.arrival_rows(ui));
+        egui::CollapsingHeader::new("Arrival goal")
+            .default_open(true)
+            .show(ui, |ui| self.arrival_rows(ui));
         egui::CollapsingHeader::new("Launch limits").show(ui, |ui| self.launch_rows(ui));
-        egui::CollapsingHeader::new("Spacecraft").default_open(true).show(ui, |ui| self.spacecraft_rows(ui));
+        egui::CollapsingHeader::new("Spacecraft")
+            .default_open(true)
+            .show(ui, |ui| self.spacecraft_rows(ui));
         egui::CollapsingHeader::new("Launch vehicle").show(ui, |ui| self.vehicle_rows(ui));
         egui::CollapsingHeader::new("Notes").show(ui, |ui| {
             let mut notes = self.doc.design.notes.clone();
@@ -124,7 +155,14 @@ impl TourwrightApp {
                     None => t.plus_days(200.0),
                 };
                 let body = d.stops[k].body.clone();
-                d.stops.insert(k + 1, Stop { body, epoch, swingby: Default::default() });
+                d.stops.insert(
+                    k + 1,
+                    Stop {
+                        body,
+                        epoch,
+                        swingby: Default::default(),
+                    },
+                );
                 if k < d.legs.len() {
                     d.legs.insert(k, Default::default());
                 }
@@ -143,8 +181,14 @@ impl TourwrightApp {
                 // Reordering swaps bodies and settings but keeps the dates in time order.
                 let j = if what == "up" { k - 1 } else { k + 1 };
                 let (a, b) = (d.stops[k].clone(), d.stops[j].clone());
-                d.stops[k] = Stop { epoch: a.epoch, ..b };
-                d.stops[j] = Stop { epoch: b.epoch, ..a };
+                d.stops[k] = Stop {
+                    epoch: a.epoch,
+                    ..b
+                };
+                d.stops[j] = Stop {
+                    epoch: b.epoch,
+                    ..a
+                };
             }),
             _ => {}
         }
@@ -153,12 +197,17 @@ impl TourwrightApp {
 
     fn epoch_row(&mut self, ui: &mut egui::Ui, k: usize, epoch: Epoch) {
         ui.horizontal(|ui| {
-            ui.label("Date").on_hover_text("UTC calendar date; also accepts …T12:00:00 and a TDB suffix");
+            ui.label("Date")
+                .on_hover_text("UTC calendar date; also accepts …T12:00:00 and a TDB suffix");
             let mut text = match &self.epoch_edit {
                 Some((j, t)) if *j == k => t.clone(),
                 _ => epoch.to_date_utc(),
             };
-            let r = ui.add(egui::TextEdit::singleline(&mut text).desired_width(150.0).id_salt("epoch"));
+            let r = ui.add(
+                egui::TextEdit::singleline(&mut text)
+                    .desired_width(150.0)
+                    .id_salt("epoch"),
+            );
             if r.changed() {
                 self.epoch_edit = Some((k, text.clone()));
             }
@@ -168,10 +217,22 @@ impl TourwrightApp {
                     Ok(t) => {
                         let (lo, hi) = mean_element_range();
                         if t.tdb_s < lo.tdb_s || t.tdb_s > hi.tdb_s {
-                            self.epoch_error = Some((k, format!("{} is outside the ephemeris range {} .. {}", t.to_date_utc(), lo.to_date_utc(), hi.to_date_utc())));
+                            self.epoch_error = Some((
+                                k,
+                                format!(
+                                    "{} is outside the ephemeris range {} .. {}",
+                                    t.to_date_utc(),
+                                    lo.to_date_utc(),
+                                    hi.to_date_utc()
+                                ),
+                            ));
                         } else {
                             // Keep the time of day when only a date was typed.
-                            let t = if text.trim().len() <= 10 { t.plus_days(epoch.mjd2000().fract().rem_euclid(1.0)) } else { t };
+                            let t = if text.trim().len() <= 10 {
+                                t.plus_days(epoch.mjd2000().fract().rem_euclid(1.0))
+                            } else {
+                                t
+                            };
                             self.doc.edit(|d| d.stops[k].epoch = t);
                             self.epoch_error = None;
                             self.epoch_edit = None;
@@ -181,8 +242,13 @@ impl TourwrightApp {
                 }
             }
             for (label, days) in [("−10", -10.0), ("−1", -1.0), ("+1", 1.0), ("+10", 10.0)] {
-                if ui.small_button(label).on_hover_text(format!("move the date by {days} days")).clicked() {
-                    self.doc.edit(|d| d.stops[k].epoch = d.stops[k].epoch.plus_days(days));
+                if ui
+                    .small_button(label)
+                    .on_hover_text(format!("move the date by {days} days"))
+                    .clicked()
+                {
+                    self.doc
+                        .edit(|d| d.stops[k].epoch = d.stops[k].epoch.plus_days(days));
                     self.epoch_edit = None;
                     self.epoch_error = None;
                 }
@@ -190,7 +256,9 @@ impl TourwrightApp {
         });
         if let Some((j, msg)) = &self.epoch_error {
             if *j == k {
-                ui.label(RichText::new(format!("! {msg}")).color(style::error_color(self.settings.dark)));
+                ui.label(
+                    RichText::new(format!("! {msg}")).color(style::error_color(self.settings.dark)),
+                );
             }
         }
     }
@@ -202,13 +270,28 @@ impl TourwrightApp {
         ui.horizontal(|ui| {
             let mut custom = stop.swingby.min_altitude_km.is_some();
             let def = data.map(|d| d.min_altitude_km).unwrap_or(0.0);
-            if ui.checkbox(&mut custom, "Min altitude").on_hover_text("Lowest periapsis altitude allowed; the body's default when unticked").changed() {
-                self.doc.edit(|d| d.stops[k].swingby.min_altitude_km = if custom { Some(def) } else { None });
+            if ui
+                .checkbox(&mut custom, "Min altitude")
+                .on_hover_text(
+                    "Lowest periapsis altitude allowed; the body's default when unticked",
+                )
+                .changed()
+            {
+                self.doc.edit(|d| {
+                    d.stops[k].swingby.min_altitude_km = if custom { Some(def) } else { None }
+                });
             }
             let mut v = stop.swingby.min_altitude_km.unwrap_or(def);
-            let r = ui.add_enabled(custom, DragValue::new(&mut v).speed(10.0).range(-1.0e5..=1.0e7).suffix(" km"));
+            let r = ui.add_enabled(
+                custom,
+                DragValue::new(&mut v)
+                    .speed(10.0)
+                    .range(-1.0e5..=1.0e7)
+                    .suffix(" km"),
+            );
             if r.changed() {
-                self.doc.edit_live(|d| d.stops[k].swingby.min_altitude_km = Some(v));
+                self.doc
+                    .edit_live(|d| d.stops[k].swingby.min_altitude_km = Some(v));
             }
         });
         ui.horizontal(|ui| {
@@ -221,7 +304,11 @@ impl TourwrightApp {
                 self.make_shaped(k);
             }
         });
-        if let SwingbyMode::Shaped { mut altitude_km, mut aim_deg } = stop.swingby.mode {
+        if let SwingbyMode::Shaped {
+            mut altitude_km,
+            mut aim_deg,
+        } = stop.swingby.mode
+        {
             ui.horizontal(|ui| {
                 ui.label("Altitude");
                 let speed = altitude_km.abs().max(100.0) * 0.005;
@@ -229,7 +316,12 @@ impl TourwrightApp {
                 ui.label("Aim");
                 let r2 = ui.add(DragValue::new(&mut aim_deg).speed(0.2).suffix("°"));
                 if r1.changed() || r2.changed() {
-                    self.doc.edit_live(|d| d.stops[k].swingby.mode = SwingbyMode::Shaped { altitude_km, aim_deg });
+                    self.doc.edit_live(|d| {
+                        d.stops[k].swingby.mode = SwingbyMode::Shaped {
+                            altitude_km,
+                            aim_deg,
+                        }
+                    });
                 }
             });
             self.retarget_row(ui, k);
@@ -238,15 +330,34 @@ impl TourwrightApp {
 
     /// Switch a targeted swing-by to shaped, starting from the altitude and aim it has now.
     pub fn make_shaped(&mut self, k: usize) {
-        let sw = self.eval.stops.get(k).and_then(|s| s.swingby).unwrap_or_default();
-        let alt = if sw.altitude_km.is_finite() && sw.altitude_km < 1e12 { sw.altitude_km } else { 10_000.0 };
+        let sw = self
+            .eval
+            .stops
+            .get(k)
+            .and_then(|s| s.swingby)
+            .unwrap_or_default();
+        let alt = if sw.altitude_km.is_finite() && sw.altitude_km < 1e12 {
+            sw.altitude_km
+        } else {
+            10_000.0
+        };
         let aim = sw.bplane.aim.to_degrees();
-        self.doc.edit(|d| d.stops[k].swingby.mode = SwingbyMode::Shaped { altitude_km: alt, aim_deg: aim });
+        self.doc.edit(|d| {
+            d.stops[k].swingby.mode = SwingbyMode::Shaped {
+                altitude_km: alt,
+                aim_deg: aim,
+            }
+        });
     }
 
     /// Miss distance and the retarget buttons of a shaped swing-by.
     pub fn retarget_row(&mut self, ui: &mut egui::Ui, k: usize) {
-        let miss = self.eval.stops.get(k).and_then(|s| s.swingby).and_then(|s| s.miss_km);
+        let miss = self
+            .eval
+            .stops
+            .get(k)
+            .and_then(|s| s.swingby)
+            .and_then(|s| s.miss_km);
         ui.horizontal_wrapped(|ui| {
             if let Some(m) = miss {
                 let soi = self.doc.design.resolve(&self.doc.design.stops[k + 1].body).map(|b| self.doc.design.body_data(&b).soi_km).unwrap_or(1e5);
@@ -284,16 +395,33 @@ impl TourwrightApp {
                 return;
             }
             let mut revs = leg.revolutions;
-            let r = ui.add(DragValue::new(&mut revs).range(0..=crate::astro::lambert::MAX_REVS as u32).prefix("revs "));
+            let r = ui.add(
+                DragValue::new(&mut revs)
+                    .range(0..=crate::astro::lambert::MAX_REVS as u32)
+                    .prefix("revs "),
+            );
             let mut branch = leg.branch;
             if revs > 0 {
-                egui::ComboBox::from_id_salt(("branch", k)).width(60.0).selected_text(format!("{branch:?}")).show_ui(ui, |ui| {
-                    ui.selectable_value(&mut branch, crate::astro::lambert::Branch::Left, "Left");
-                    ui.selectable_value(&mut branch, crate::astro::lambert::Branch::Right, "Right");
-                });
+                egui::ComboBox::from_id_salt(("branch", k))
+                    .width(60.0)
+                    .selected_text(format!("{branch:?}"))
+                    .show_ui(ui, |ui| {
+                        ui.selectable_value(
+                            &mut branch,
+                            crate::astro::lambert::Branch::Left,
+                            "Left",
+                        );
+                        ui.selectable_value(
+                            &mut branch,
+                            crate::astro::lambert::Branch::Right,
+                            "Right",
+                        );
+                    });
             }
             let mut retro = leg.direction == crate::astro::lambert::Direction::Retrograde;
-            let r3 = ui.checkbox(&mut retro, "retro").on_hover_text("Retrograde arc (clockwise seen from ecliptic north)");
+            let r3 = ui
+                .checkbox(&mut retro, "retro")
+                .on_hover_text("Retrograde arc (clockwise seen from ecliptic north)");
             if r.changed() || branch != leg.branch || r3.changed() {
                 self.doc.edit(|d| {
                     while d.legs.len() <= k {
@@ -301,7 +429,11 @@ impl TourwrightApp {
                     }
                     d.legs[k].revolutions = revs;
                     d.legs[k].branch = branch;
-                    d.legs[k].direction = if retro { crate::astro::lambert::Direction::Retrograde } else { crate::astro::lambert::Direction::Prograde };
+                    d.legs[k].direction = if retro {
+                        crate::astro::lambert::Direction::Retrograde
+                    } else {
+                        crate::astro::lambert::Direction::Prograde
+                    };
                 });
             }
         });
@@ -324,22 +456,50 @@ impl TourwrightApp {
             (2, _) => ArrivalGoal::Rendezvous,
             (_, ArrivalGoal::Capture { .. }) => goal,
             _ => {
-                let r = self.doc.design.stops.last().and_then(|s| self.doc.design.resolve(&s.body)).map(|b| self.doc.design.body_data(&b).radius_km).unwrap_or(1000.0);
-                ArrivalGoal::Capture { periapsis_radius_km: r * 1.2, eccentricity: 0.5 }
+                let r = self
+                    .doc
+                    .design
+                    .stops
+                    .last()
+                    .and_then(|s| self.doc.design.resolve(&s.body))
+                    .map(|b| self.doc.design.body_data(&b).radius_km)
+                    .unwrap_or(1000.0);
+                ArrivalGoal::Capture {
+                    periapsis_radius_km: r * 1.2,
+                    eccentricity: 0.5,
+                }
             }
         };
         if new_goal != goal {
             self.doc.edit(|d| d.arrival = new_goal);
         }
-        if let ArrivalGoal::Capture { mut periapsis_radius_km, mut eccentricity } = new_goal {
+        if let ArrivalGoal::Capture {
+            mut periapsis_radius_km,
+            mut eccentricity,
+        } = new_goal
+        {
             ui.horizontal(|ui| {
                 ui.label("r_p");
                 let speed = periapsis_radius_km * 0.002;
-                let a = ui.add(DragValue::new(&mut periapsis_radius_km).speed(speed).range(1.0..=1e9).suffix(" km"));
+                let a = ui.add(
+                    DragValue::new(&mut periapsis_radius_km)
+                        .speed(speed)
+                        .range(1.0..=1e9)
+                        .suffix(" km"),
+                );
                 ui.label("e");
-                let b = ui.add(DragValue::new(&mut eccentricity).speed(0.002).range(0.0..=0.999));
+                let b = ui.add(
+                    DragValue::new(&mut eccentricity)
+                        .speed(0.002)
+                        .range(0.0..=0.999),
+                );
                 if a.changed() || b.changed() {
-                    self.doc.edit_live(|d| d.arrival = ArrivalGoal::Capture { periapsis_radius_km, eccentricity });
+                    self.doc.edit_live(|d| {
+                        d.arrival = ArrivalGoal::Capture {
+                            periapsis_radius_km,
+                            eccentricity,
+                        }
+                    });
                 }
             });
         }
@@ -347,22 +507,34 @@ impl TourwrightApp {
 
     fn launch_rows(&mut self, ui: &mut egui::Ui) {
         let l = self.doc.design.launch;
-        let mut row = |ui: &mut egui::Ui, label: &str, v: Option<f64>, def: f64, unit: &str, set: fn(&mut crate::mission::MissionDesign, Option<f64>)| {
-            ui.horizontal(|ui| {
-                let mut on = v.is_some();
-                let mut x = v.unwrap_or(def);
-                let c = ui.checkbox(&mut on, label).changed();
-                let r = ui.add_enabled(on, DragValue::new(&mut x).speed(0.1).suffix(unit));
-                if c {
-                    self.doc.edit(|d| set(d, on.then_some(x)));
-                } else if r.changed() {
-                    self.doc.edit_live(|d| set(d, Some(x)));
-                }
-            });
-        };
-        row(ui, "max C3", l.max_c3_km2_s2, 30.0, " km²/s²", |d, v| d.launch.max_c3_km2_s2 = v);
-        row(ui, "min DLA", l.min_dla_deg, -28.5, "°", |d, v| d.launch.min_dla_deg = v);
-        row(ui, "max DLA", l.max_dla_deg, 28.5, "°", |d, v| d.launch.max_dla_deg = v);
+        let mut row =
+            |ui: &mut egui::Ui,
+             label: &str,
+             v: Option<f64>,
+             def: f64,
+             unit: &str,
+             set: fn(&mut crate::mission::MissionDesign, Option<f64>)| {
+                ui.horizontal(|ui| {
+                    let mut on = v.is_some();
+                    let mut x = v.unwrap_or(def);
+                    let c = ui.checkbox(&mut on, label).changed();
+                    let r = ui.add_enabled(on, DragValue::new(&mut x).speed(0.1).suffix(unit));
+                    if c {
+                        self.doc.edit(|d| set(d, on.then_some(x)));
+                    } else if r.changed() {
+                        self.doc.edit_live(|d| set(d, Some(x)));
+                    }
+                });
+            };
+        row(ui, "max C3", l.max_c3_km2_s2, 30.0, " km²/s²", |d, v| {
+            d.launch.max_c3_km2_s2 = v
+        });
+        row(ui, "min DLA", l.min_dla_deg, -28.5, "°", |d, v| {
+            d.launch.min_dla_deg = v
+        });
+        row(ui, "max DLA", l.max_dla_deg, 28.5, "°", |d, v| {
+            d.launch.max_dla_deg = v
+        });
     }
 
     fn spacecraft_rows(&mut self, ui: &mut egui::Ui) {
@@ -373,13 +545,35 @@ impl TourwrightApp {
             changed |= ui.text_edit_singleline(&mut sc.name).changed();
             ui.end_row();
             ui.label("Dry mass");
-            changed |= ui.add(DragValue::new(&mut sc.dry_mass_kg).speed(5.0).range(0.0..=1e6).suffix(" kg")).changed();
+            changed |= ui
+                .add(
+                    DragValue::new(&mut sc.dry_mass_kg)
+                        .speed(5.0)
+                        .range(0.0..=1e6)
+                        .suffix(" kg"),
+                )
+                .changed();
             ui.end_row();
             ui.label("Propellant");
-            changed |= ui.add(DragValue::new(&mut sc.propellant_kg).speed(5.0).range(0.0..=1e6).suffix(" kg")).changed();
+            changed |= ui
+                .add(
+                    DragValue::new(&mut sc.propellant_kg)
+                        .speed(5.0)
+                        .range(0.0..=1e6)
+                        .suffix(" kg"),
+                )
+                .changed();
             ui.end_row();
-            ui.label("Isp").on_hover_text("Specific impulse of the main engine");
-            changed |= ui.add(DragValue::new(&mut sc.isp_s).speed(1.0).range(1.0..=1e5).suffix(" s")).changed();
+            ui.label("Isp")
+                .on_hover_text("Specific impulse of the main engine");
+            changed |= ui
+                .add(
+                    DragValue::new(&mut sc.isp_s)
+                        .speed(1.0)
+                        .range(1.0..=1e5)
+                        .suffix(" s"),
+                )
+                .changed();
             ui.end_row();
         });
         if changed {
@@ -393,11 +587,21 @@ impl TourwrightApp {
                 self.doc.edit(|d| {
                     d.launch_vehicle = Some(LaunchVehicle {
                         name: "Illustrative vehicle".into(),
-                        note: "Invented curve; replace with the vehicle's published performance.".into(),
+                        note: "Invented curve; replace with the vehicle's published performance."
+                            .into(),
                         performance: vec![
-                            PerformancePoint { c3_km2_s2: 0.0, mass_kg: 5000.0 },
-                            PerformancePoint { c3_km2_s2: 20.0, mass_kg: 3500.0 },
-                            PerformancePoint { c3_km2_s2: 40.0, mass_kg: 2200.0 },
+                            PerformancePoint {
+                                c3_km2_s2: 0.0,
+                                mass_kg: 5000.0,
+                            },
+                            PerformancePoint {
+                                c3_km2_s2: 20.0,
+                                mass_kg: 3500.0,
+                            },
+                            PerformancePoint {
+                                c3_km2_s2: 40.0,
+                                mass_kg: 2200.0,
+                            },
                         ],
                     })
                 });
@@ -413,8 +617,12 @@ impl TourwrightApp {
             ui.label("mass (kg)");
             ui.end_row();
             for (i, p) in lv.performance.iter_mut().enumerate() {
-                changed |= ui.add(DragValue::new(&mut p.c3_km2_s2).speed(0.2)).changed();
-                changed |= ui.add(DragValue::new(&mut p.mass_kg).speed(10.0).range(0.0..=1e6)).changed();
+                changed |= ui
+                    .add(DragValue::new(&mut p.c3_km2_s2).speed(0.2))
+                    .changed();
+                changed |= ui
+                    .add(DragValue::new(&mut p.mass_kg).speed(10.0).range(0.0..=1e6))
+                    .changed();
                 if ui.small_button("x").clicked() {
                     remove = Some(i);
                 }
@@ -427,17 +635,29 @@ impl TourwrightApp {
         }
         ui.horizontal(|ui| {
             if ui.small_button("+ row").clicked() {
-                let last = lv.performance.last().copied().unwrap_or(PerformancePoint { c3_km2_s2: 0.0, mass_kg: 1000.0 });
-                lv.performance.push(PerformancePoint { c3_km2_s2: last.c3_km2_s2 + 10.0, mass_kg: (last.mass_kg * 0.8).max(0.0) });
+                let last = lv.performance.last().copied().unwrap_or(PerformancePoint {
+                    c3_km2_s2: 0.0,
+                    mass_kg: 1000.0,
+                });
+                lv.performance.push(PerformancePoint {
+                    c3_km2_s2: last.c3_km2_s2 + 10.0,
+                    mass_kg: (last.mass_kg * 0.8).max(0.0),
+                });
                 changed = true;
             }
             if ui.small_button("remove table").clicked() {
                 self.doc.edit(|d| d.launch_vehicle = None);
             }
         });
-        let increasing = lv.performance.windows(2).all(|w| w[1].c3_km2_s2 > w[0].c3_km2_s2);
+        let increasing = lv
+            .performance
+            .windows(2)
+            .all(|w| w[1].c3_km2_s2 > w[0].c3_km2_s2);
         if !increasing {
-            ui.label(RichText::new("! C3 must increase down the table; the table is not applied").color(style::error_color(self.settings.dark)));
+            ui.label(
+                RichText::new("! C3 must increase down the table; the table is not applied")
+                    .color(style::error_color(self.settings.dark)),
+            );
         }
         if changed && increasing && self.doc.design.launch_vehicle.is_some() {
             self.doc.edit_live(|d| d.launch_vehicle = Some(lv.clone()));
@@ -452,7 +672,11 @@ impl TourwrightApp {
         let mut copy = None;
         ui.horizontal(|ui| {
             ui.heading("Ledger");
-            if ui.button("Copy table").on_hover_text("Copy the table as tab-separated text").clicked() {
+            if ui
+                .button("Copy table")
+                .on_hover_text("Copy the table as tab-separated text")
+                .clicked()
+            {
                 copy = Some(self.ledger_text());
             }
             let l = &e.ledger;
@@ -467,42 +691,87 @@ impl TourwrightApp {
             if let Some(m) = l.delivered_mass_kg {
                 ui.label(format!("· delivered with launch vehicle {} kg", fmt(m, 0)));
             }
-            ui.label(format!("· C3 {} km²/s² · TOF {} d", fmt(e.launch.c3, 2), fmt(e.total_tof_days(), 0)));
+            ui.label(format!(
+                "· C3 {} km²/s² · TOF {} d",
+                fmt(e.launch.c3, 2),
+                fmt(e.total_tof_days(), 0)
+            ));
         });
         egui::ScrollArea::both().show(ui, |ui| {
-            egui::Grid::new("ledger-grid").striped(true).num_columns(11).show(ui, |ui| {
-                for h in ["#", "stop", "body", "date (UTC)", "v∞ in (km/s)", "v∞ out (km/s)", "altitude (km)", "turn (°)", "Δv (km/s)", "energy gain (km²/s²)", "mass (kg)"] {
-                    ui.label(RichText::new(h).strong());
-                }
-                ui.end_row();
-                for (k, s) in e.stops.iter().enumerate() {
-                    let sw = s.swingby;
-                    let is_sw = s.kind == StopKind::SwingBy;
-                    if ui.selectable_label(self.selected == k, format!("{}", k + 1)).clicked() {
-                        self.selected = k;
+            egui::Grid::new("ledger-grid")
+                .striped(true)
+                .num_columns(11)
+                .show(ui, |ui| {
+                    for h in [
+                        "#",
+                        "stop",
+                        "body",
+                        "date (UTC)",
+                        "v∞ in (km/s)",
+                        "v∞ out (km/s)",
+                        "altitude (km)",
+                        "turn (°)",
+                        "Δv (km/s)",
+                        "energy gain (km²/s²)",
+                        "mass (kg)",
+                    ] {
+                        ui.label(RichText::new(h).strong());
                     }
-                    ui.label(s.kind.label());
-                    ui.label(RichText::new(&d.stops[k].body).color(style::body_color(&d.stops[k].body)));
-                    ui.label(s.epoch.to_date_utc());
-                    ui.label(if k > 0 { fmt(s.vinf_in.norm(), 3) } else { "—".into() });
-                    ui.label(if k + 1 < e.stops.len() { fmt(s.vinf_out.norm(), 3) } else { "—".into() });
-                    let alt = sw.map(|w| (w.altitude_km, w.min_altitude_km));
-                    match alt {
-                        Some((a, m)) if is_sw => {
-                            let t = RichText::new(fmt(a, 0));
-                            ui.label(if a < m - 1e-3 { t.color(style::error_color(dark)) } else { t });
-                        }
-                        _ => {
-                            ui.label("—");
-                        }
-                    }
-                    ui.label(sw.filter(|_| is_sw).map(|w| fmt(w.turn_rad.to_degrees(), 1)).unwrap_or("—".into()));
-                    ui.label(fmt(s.dv_km_s, 3));
-                    ui.label(if is_sw { fmt(s.gain(), 2) } else { "—".into() });
-                    ui.label(fmt(s.mass_after_kg, 0));
                     ui.end_row();
-                }
-            });
+                    for (k, s) in e.stops.iter().enumerate() {
+                        let sw = s.swingby;
+                        let is_sw = s.kind == StopKind::SwingBy;
+                        if ui
+                            .selectable_label(self.selected == k, format!("{}", k + 1))
+                            .clicked()
+                        {
+                            self.selected = k;
+                        }
+                        ui.label(s.kind.label());
+                        ui.label(
+                            RichText::new(&d.stops[k].body)
+                                .color(style::body_color(&d.stops[k].body)),
+                        );
+                        ui.label(s.epoch.to_date_utc());
+                        ui.label(if k > 0 {
+                            fmt(s.vinf_in.norm(), 3)
+                        } else {
+                            "—".into()
+                        });
+                        ui.label(if k + 1 < e.stops.len() {
+                            fmt(s.vinf_out.norm(), 3)
+                        } else {
+                            "—".into()
+                        });
+                        let alt = sw.map(|w| (w.altitude_km, w.min_altitude_km));
+                        match alt {
+                            Some((a, m)) if is_sw => {
+                                let t = RichText::new(fmt(a, 0));
+                                ui.label(if a < m - 1e-3 {
+                                    t.color(style::error_color(dark))
+                                } else {
+                                    t
+                                });
+                            }
+                            _ => {
+                                ui.label("—");
+                            }
+                        }
+                        ui.label(
+                            sw.filter(|_| is_sw)
+                                .map(|w| fmt(w.turn_rad.to_degrees(), 1))
+                                .unwrap_or("—".into()),
+                        );
+                        ui.label(fmt(s.dv_km_s, 3));
+                        ui.label(if is_sw {
+                            fmt(s.gain(), 2)
+                        } else {
+                            "—".into()
+                        });
+                        ui.label(fmt(s.mass_after_kg, 0));
+                        ui.end_row();
+                    }
+                });
             for w in &e.warnings {
                 ui.label(RichText::new(format!("! {w}")).color(style::warn_color(dark)));
             }

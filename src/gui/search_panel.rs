@@ -82,10 +82,19 @@ impl TourwrightApp {
             return;
         }
         let p = Problem::from_design(&d);
-        let opts = OptimizeOptions { seed: self.search.seed, max_evals: self.search.evals, ..Default::default() };
+        let opts = OptimizeOptions {
+            seed: self.search.seed,
+            max_evals: self.search.evals,
+            ..Default::default()
+        };
         let rev = self.doc.revision();
         self.jobs.retain(|j| !matches!(j, GuiJob::Optimize(..)));
-        self.jobs.push(GuiJob::Optimize(Job::spawn("optimiser", move |pr| optimize::optimize(&p, &opts, &pr, true)), rev));
+        self.jobs.push(GuiJob::Optimize(
+            Job::spawn("optimiser", move |pr| {
+                optimize::optimize(&p, &opts, &pr, true)
+            }),
+            rev,
+        ));
     }
 
     /// The right-hand Search panel.
@@ -93,18 +102,33 @@ impl TourwrightApp {
         ui.heading("Search");
         ui.label(RichText::new("Date optimiser").strong());
         ui.label(RichText::new("Varies the launch date and every leg's TOF within the design's search bounds; self-adaptive differential evolution on 4 islands, then a local polish.").weak());
-        egui::ComboBox::from_label("objective").selected_text(objective_label(self.search.objective)).show_ui(ui, |ui| {
-            for o in [Objective::TotalDvWithLaunchVinf, Objective::SpacecraftDv, Objective::DeliveredMass, Objective::TimeOfFlight] {
-                ui.selectable_value(&mut self.search.objective, o, objective_label(o));
-            }
-        });
+        egui::ComboBox::from_label("objective")
+            .selected_text(objective_label(self.search.objective))
+            .show_ui(ui, |ui| {
+                for o in [
+                    Objective::TotalDvWithLaunchVinf,
+                    Objective::SpacecraftDv,
+                    Objective::DeliveredMass,
+                    Objective::TimeOfFlight,
+                ] {
+                    ui.selectable_value(&mut self.search.objective, o, objective_label(o));
+                }
+            });
         ui.horizontal(|ui| {
-            ui.add(egui::DragValue::new(&mut self.search.evals).range(1_000..=20_000_000).speed(1000.0).prefix("budget "));
+            ui.add(
+                egui::DragValue::new(&mut self.search.evals)
+                    .range(1_000..=20_000_000)
+                    .speed(1000.0)
+                    .prefix("budget "),
+            );
             ui.add(egui::DragValue::new(&mut self.search.seed).prefix("seed "));
         });
         let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Optimize(..)));
         ui.horizontal(|ui| {
-            if ui.add_enabled(!running, egui::Button::new("Optimise dates")).clicked() {
+            if ui
+                .add_enabled(!running, egui::Button::new("Optimise dates"))
+                .clicked()
+            {
                 self.start_optimizer();
             }
             if running && ui.button("Cancel").clicked() {
@@ -117,22 +141,45 @@ impl TourwrightApp {
         });
         for j in &self.jobs {
             if let GuiJob::Optimize(job, _) = j {
-                ui.add(egui::ProgressBar::new(job.progress.fraction()).text(job.progress.message()));
+                ui.add(
+                    egui::ProgressBar::new(job.progress.fraction()).text(job.progress.message()),
+                );
             }
         }
         if let Some((r, rev)) = &self.search.opt_result {
-            ui.label(format!("best {:.4} after {} evaluations{}", r.value, r.evaluations, if r.cancelled { " (cancelled)" } else { "" }));
+            ui.label(format!(
+                "best {:.4} after {} evaluations{}",
+                r.value,
+                r.evaluations,
+                if r.cancelled { " (cancelled)" } else { "" }
+            ));
             let stale = *rev != self.doc.revision();
             if stale {
-                ui.label(RichText::new("the design changed since; applying replaces its dates").weak());
+                ui.label(
+                    RichText::new("the design changed since; applying replaces its dates").weak(),
+                );
             }
-            let apply = ui.button("Apply the dates").on_hover_text("One undo step").clicked();
+            let apply = ui
+                .button("Apply the dates")
+                .on_hover_text("One undo step")
+                .clicked();
             if !r.front.is_empty() {
-                ui.label(format!("trade-off front: {} points from {:.0} to {:.0} days", r.front.len(), r.front[0].0, r.front[r.front.len() - 1].0));
-                egui_plot::Plot::new("front").height(120.0).x_axis_label("total TOF (days)").show(ui, |pl| {
-                    let pts: Vec<[f64; 2]> = r.front.iter().map(|p| [p.0, p.1]).collect();
-                    pl.points(egui_plot::Points::new("front", egui_plot::PlotPoints::from(pts)).radius(2.5));
-                });
+                ui.label(format!(
+                    "trade-off front: {} points from {:.0} to {:.0} days",
+                    r.front.len(),
+                    r.front[0].0,
+                    r.front[r.front.len() - 1].0
+                ));
+                egui_plot::Plot::new("front")
+                    .height(120.0)
+                    .x_axis_label("total TOF (days)")
+                    .show(ui, |pl| {
+                        let pts: Vec<[f64; 2]> = r.front.iter().map(|p| [p.0, p.1]).collect();
+                        pl.points(
+                            egui_plot::Points::new("front", egui_plot::PlotPoints::from(pts))
+                                .radius(2.5),
+                        );
+                    });
             }
             if apply {
                 let epochs: Vec<Epoch> = r.design.stops.iter().map(|s| s.epoch).collect();
@@ -143,7 +190,10 @@ impl TourwrightApp {
                         }
                     });
                 } else {
-                    self.status = Some(("the design's stops changed since the run; not applied".into(), true));
+                    self.status = Some((
+                        "the design's stops changed since the run; not applied".into(),
+                        true,
+                    ));
                 }
             }
         }
@@ -151,15 +201,24 @@ impl TourwrightApp {
         ui.label(RichText::new("Sequence explorer").strong());
         ui.horizontal(|ui| {
             ui.label("from Earth to");
-            egui::ComboBox::from_id_salt("target").selected_text(self.search.target.name()).show_ui(ui, |ui| {
-                for p in Planet::ALL {
-                    ui.selectable_value(&mut self.search.target, p, p.name());
-                }
-            });
+            egui::ComboBox::from_id_salt("target")
+                .selected_text(self.search.target.name())
+                .show_ui(ui, |ui| {
+                    for p in Planet::ALL {
+                        ui.selectable_value(&mut self.search.target, p, p.name());
+                    }
+                });
         });
         ui.horizontal_wrapped(|ui| {
             ui.label("swing-bys at");
-            for p in [Planet::Mercury, Planet::Venus, Planet::Earth, Planet::Mars, Planet::Jupiter, Planet::Saturn] {
+            for p in [
+                Planet::Mercury,
+                Planet::Venus,
+                Planet::Earth,
+                Planet::Mars,
+                Planet::Jupiter,
+                Planet::Saturn,
+            ] {
                 let mut on = self.search.via.contains(&p);
                 if ui.checkbox(&mut on, p.letter()).changed() {
                     if on {
@@ -171,8 +230,18 @@ impl TourwrightApp {
             }
         });
         ui.horizontal(|ui| {
-            ui.add(egui::DragValue::new(&mut self.search.max_swingbys).range(0..=3).prefix("max swing-bys "));
-            ui.add(egui::DragValue::new(&mut self.search.max_tof_years).range(0.5..=20.0).speed(0.1).prefix("max TOF ").suffix(" y"));
+            ui.add(
+                egui::DragValue::new(&mut self.search.max_swingbys)
+                    .range(0..=3)
+                    .prefix("max swing-bys "),
+            );
+            ui.add(
+                egui::DragValue::new(&mut self.search.max_tof_years)
+                    .range(0.5..=20.0)
+                    .speed(0.1)
+                    .prefix("max TOF ")
+                    .suffix(" y"),
+            );
         });
         ui.horizontal(|ui| {
             ui.label("launch");
@@ -180,10 +249,21 @@ impl TourwrightApp {
             ui.label("..");
             ui.add(egui::TextEdit::singleline(&mut self.search.launch.1).desired_width(85.0));
         });
-        ui.add(egui::DragValue::new(&mut self.search.evals_per_sequence).range(1000..=2_000_000).speed(500.0).prefix("evaluations per sequence "));
+        ui.add(
+            egui::DragValue::new(&mut self.search.evals_per_sequence)
+                .range(1000..=2_000_000)
+                .speed(500.0)
+                .prefix("evaluations per sequence "),
+        );
         let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Explore(..)));
-        if ui.add_enabled(!running, egui::Button::new("Explore sequences")).clicked() {
-            match (Epoch::parse(&self.search.launch.0), Epoch::parse(&self.search.launch.1)) {
+        if ui
+            .add_enabled(!running, egui::Button::new("Explore sequences"))
+            .clicked()
+        {
+            match (
+                Epoch::parse(&self.search.launch.0),
+                Epoch::parse(&self.search.launch.1),
+            ) {
                 (Ok(a), Ok(b)) if b.tdb_s > a.tdb_s => {
                     self.search.error = None;
                     let spec = ExploreSpec {
@@ -199,22 +279,38 @@ impl TourwrightApp {
                     };
                     let mut template = self.doc.design.clone();
                     template.user_bodies.clear();
-                    self.jobs.push(GuiJob::Explore(Job::spawn("sequence explorer", move |p| explore::explore(&spec, &template, &p))));
+                    self.jobs
+                        .push(GuiJob::Explore(Job::spawn("sequence explorer", move |p| {
+                            explore::explore(&spec, &template, &p)
+                        })));
                 }
-                _ => self.search.error = Some("launch period: two dates, the second after the first".into()),
+                _ => {
+                    self.search.error =
+                        Some("launch period: two dates, the second after the first".into())
+                }
             }
         }
         if let Some(e) = &self.search.error {
-            ui.label(RichText::new(format!("! {e}")).color(super::style::error_color(self.settings.dark)));
+            ui.label(
+                RichText::new(format!("! {e}"))
+                    .color(super::style::error_color(self.settings.dark)),
+            );
         }
         for j in &self.jobs {
             if let GuiJob::Explore(job) = j {
-                ui.add(egui::ProgressBar::new(job.progress.fraction()).text(job.progress.message()));
+                ui.add(
+                    egui::ProgressBar::new(job.progress.fraction()).text(job.progress.message()),
+                );
             }
         }
         let mut open = None;
         if let Some(ex) = &self.search.explore_result {
-            ui.label(format!("{} sequences, {} pruned, {} optimised", ex.enumerated, ex.pruned.len(), ex.ranked.len()));
+            ui.label(format!(
+                "{} sequences, {} pruned, {} optimised",
+                ex.enumerated,
+                ex.pruned.len(),
+                ex.ranked.len()
+            ));
             egui::Grid::new("explore").striped(true).show(ui, |ui| {
                 for h in ["sequence", "launch", "TOF d", "C3", "Δv", ""] {
                     ui.label(RichText::new(h).strong());
@@ -242,7 +338,12 @@ impl TourwrightApp {
             }
         }
         if let Some(i) = open {
-            if let Some(c) = self.search.explore_result.as_ref().map(|e| e.ranked[i].design.clone()) {
+            if let Some(c) = self
+                .search
+                .explore_result
+                .as_ref()
+                .map(|e| e.ranked[i].design.clone())
+            {
                 self.request(Pending::Replace(Box::new(c)));
             }
         }

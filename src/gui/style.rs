@@ -42,35 +42,68 @@ pub const SUN: Color32 = Color32::from_rgb(0xF2, 0xB1, 0x34);
 
 /// Text colour for warnings.
 pub fn warn_color(dark: bool) -> Color32 {
-    if dark { Color32::from_rgb(0xF0, 0xB0, 0x50) } else { Color32::from_rgb(0xA8, 0x5A, 0x00) }
+    if dark {
+        Color32::from_rgb(0xF0, 0xB0, 0x50)
+    } else {
+        Color32::from_rgb(0xA8, 0x5A, 0x00)
+    }
 }
 
 /// Text colour for errors.
 pub fn error_color(dark: bool) -> Color32 {
-    if dark { Color32::from_rgb(0xFF, 0x7A, 0x7A) } else { Color32::from_rgb(0xB0, 0x1E, 0x1E) }
+    if dark {
+        Color32::from_rgb(0xFF, 0x7A, 0x7A)
+    } else {
+        Color32::from_rgb(0xB0, 0x1E, 0x1E)
+    }
 }
 
 /// Faint colour for orbits and grids.
 pub fn faint(dark: bool) -> Color32 {
-    if dark { Color32::from_gray(80) } else { Color32::from_gray(190) }
+    if dark {
+        Color32::from_gray(80)
+    } else {
+        Color32::from_gray(190)
+    }
 }
 
 /// Draw the symbol of a stop.
-pub fn stop_marker(p: &Painter, at: Pos2, kind: StopKind, color: Color32, size: f32, outline: Color32) {
+pub fn stop_marker(
+    p: &Painter,
+    at: Pos2,
+    kind: StopKind,
+    color: Color32,
+    size: f32,
+    outline: Color32,
+) {
     let s = size;
     let stroke = Stroke::new(1.5, outline);
     match kind {
         StopKind::Launch => {
-            let pts = vec![pos2(at.x, at.y - s), pos2(at.x + 0.9 * s, at.y + 0.7 * s), pos2(at.x - 0.9 * s, at.y + 0.7 * s)];
+            let pts = vec![
+                pos2(at.x, at.y - s),
+                pos2(at.x + 0.9 * s, at.y + 0.7 * s),
+                pos2(at.x - 0.9 * s, at.y + 0.7 * s),
+            ];
             p.add(Shape::convex_polygon(pts, color, stroke));
         }
         StopKind::SwingBy => {
-            let pts = vec![pos2(at.x, at.y - s), pos2(at.x + s, at.y), pos2(at.x, at.y + s), pos2(at.x - s, at.y)];
+            let pts = vec![
+                pos2(at.x, at.y - s),
+                pos2(at.x + s, at.y),
+                pos2(at.x, at.y + s),
+                pos2(at.x - s, at.y),
+            ];
             p.add(Shape::convex_polygon(pts, color, stroke));
         }
         StopKind::Arrival => {
             let r = eframe::egui::Rect::from_center_size(at, eframe::egui::vec2(1.6 * s, 1.6 * s));
-            p.rect_stroke(r, 0.0, Stroke::new(2.5, color), eframe::egui::StrokeKind::Middle);
+            p.rect_stroke(
+                r,
+                0.0,
+                Stroke::new(2.5, color),
+                eframe::egui::StrokeKind::Middle,
+            );
             p.rect_stroke(r.expand(1.5), 0.0, stroke, eframe::egui::StrokeKind::Middle);
         }
     }

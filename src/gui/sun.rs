@@ -1,7 +1,9 @@
 //! Sun view: heliocentric top view (ecliptic J2000, x right, y up) with planet orbits, the
 //! tour's arcs coloured by leg, stop symbols, a scale in AU, hover read-outs and a time slider.
 
-use eframe::egui::{self, Align2, Color32, FontId, Pos2, Rect, Sense, Shape, Stroke, Vec2, pos2, vec2};
+use eframe::egui::{
+    self, Align2, Color32, FontId, Pos2, Rect, Sense, Shape, Stroke, Vec2, pos2, vec2,
+};
 
 use crate::astro::bodies::Planet;
 use crate::astro::constants::AU_KM;
@@ -12,6 +14,9 @@ use crate::mission::design::ResolvedBody;
 use super::app::TourwrightApp;
 use super::style;
 
+/// Orbit polylines (name, points in AU).
+pub type Orbits = Vec<(String, Vec<[f64; 2]>)>;
+
 /// Zoom, pan and a cache of orbit polylines.
 #[derive(Default)]
 pub struct SunViewState {
@@ -19,18 +24,21 @@ pub struct SunViewState {
     pub zoom: f32,
     /// Pan offset in AU.
     pub pan: Vec2,
-    orbits: Option<(u64, Vec<(String, Vec<[f64; 2]>)>)>,
+    orbits: Option<(u64, Orbits)>,
 }
 
 fn orbit_points(eph: &dyn Ephemeris, t0: Epoch, period_days: f64, n: usize) -> Vec<[f64; 2]> {
     (0..=n)
-        .filter_map(|i| eph.state(t0.plus_days(period_days * i as f64 / n as f64)).ok())
+        .filter_map(|i| {
+            eph.state(t0.plus_days(period_days * i as f64 / n as f64))
+                .ok()
+        })
         .map(|s| [s.r.x / AU_KM, s.r.y / AU_KM])
         .collect()
 }
 
 impl TourwrightApp {
-    fn sun_orbits(&mut self) -> &Vec<(String, Vec<[f64; 2]>)> {
+    fn sun_orbits(&mut self) -> &Orbits {
         let rev = self.doc.revision();
         if self.sun.orbits.as_ref().is_none_or(|(r, _)| *r != rev) {
             let d = &self.doc.design;
@@ -39,10 +47,13 @@ impl TourwrightApp {
             let mut reach = 1.6 * AU_KM;
             for s in &d.stops {
                 match d.resolve(&s.body) {
-                    Some(ResolvedBody::Planet(p)) => reach = reach.max(MeanElements::of(p).a_km() * 1.05),
+                    Some(ResolvedBody::Planet(p)) => {
+                        reach = reach.max(MeanElements::of(p).a_km() * 1.05)
+                    }
                     Some(ResolvedBody::User(i, _)) => {
                         let e = &d.user_bodies[i].elements;
-                        reach = reach.max(e.q_au * AU_KM * (1.0 + e.e.min(0.95)) / (1.0 - e.e.min(0.95)));
+                        reach = reach
+                            .max(e.q_au * AU_KM * (1.0 + e.e.min(0.95)) / (1.0 - e.e.min(0.95)));
                     }
                     None => {}
                 }
@@ -84,17 +95,31 @@ impl TourwrightApp {
     pub fn sun_view(&mut self, ui: &mut egui::Ui) {
         let dark = self.settings.dark;
         let tof_days = self.eval.total_tof_days();
-        let t_launch = self.doc.design.stops.first().map(|s| s.epoch).unwrap_or_default();
+        let t_launch = self
+            .doc
+            .design
+            .stops
+            .first()
+            .map(|s| s.epoch)
+            .unwrap_or_default();
         // Time slider row.
         ui.horizontal(|ui| {
             ui.label("Time");
             let mut days = self.time_frac * tof_days;
-            let r = ui.add(egui::Slider::new(&mut days, 0.0..=tof_days.max(1.0)).suffix(" d after launch").show_value(true));
+            let r = ui.add(
+                egui::Slider::new(&mut days, 0.0..=tof_days.max(1.0))
+                    .suffix(" d after launch")
+                    .show_value(true),
+            );
             if r.changed() && tof_days > 0.0 {
                 self.time_frac = (days / tof_days).clamp(0.0, 1.0);
             }
             ui.label(t_launch.plus_days(self.time_frac * tof_days).to_date_utc());
-            if ui.small_button("fit").on_hover_text("Fit the whole tour").clicked() {
+            if ui
+                .small_button("fit")
+                .on_hover_text("Fit the whole tour")
+                .clicked()
+            {
                 self.sun.zoom = 1.0;
                 self.sun.pan = Vec2::ZERO;
             }
@@ -103,7 +128,15 @@ impl TourwrightApp {
         let size = ui.available_size();
         let (resp, painter) = ui.allocate_painter(size, Sense::click_and_drag());
         let rect = resp.rect;
-        painter.rect_filled(rect, 4.0, if dark { Color32::from_rgb(14, 17, 24) } else { Color32::from_rgb(248, 247, 242) });
+        painter.rect_filled(
+            rect,
+            4.0,
+            if dark {
+                Color32::from_rgb(14, 17, 24)
+            } else {
+                Color32::from_rgb(248, 247, 242)
+            },
+        );
         // Fit: the largest orbit drawn or trajectory point.
         let mut r_max: f64 = 1.2;
         for (_, pts) in &orbits {
@@ -133,7 +166,12 @@ impl TourwrightApp {
         }
         let c = rect.center();
         let pan = self.sun.pan;
-        let to_screen = |x: f64, y: f64| pos2(c.x + (x as f32 + pan.x) * scale, c.y - (y as f32 + pan.y) * scale);
+        let to_screen = |x: f64, y: f64| {
+            pos2(
+                c.x + (x as f32 + pan.x) * scale,
+                c.y - (y as f32 + pan.y) * scale,
+            )
+        };
         let painter = painter.with_clip_rect(rect);
         // Orbits.
         for (name, pts) in &orbits {
@@ -147,7 +185,10 @@ impl TourwrightApp {
         let mut hover_best: Option<(f32, usize, usize)> = None;
         let pointer = resp.hover_pos();
         for (k, leg) in self.eval.legs.iter().enumerate() {
-            let pts: Vec<Pos2> = self.eval.samples[leg.samples.clone()].iter().map(|s| to_screen(s.state.r.x / AU_KM, s.state.r.y / AU_KM)).collect();
+            let pts: Vec<Pos2> = self.eval.samples[leg.samples.clone()]
+                .iter()
+                .map(|s| to_screen(s.state.r.x / AU_KM, s.state.r.y / AU_KM))
+                .collect();
             if let Some(p) = pointer {
                 for (i, q) in pts.iter().enumerate() {
                     let dd = q.distance(p);
@@ -175,21 +216,39 @@ impl TourwrightApp {
                 if let Ok(st) = b.state(t_now) {
                     let p = to_screen(st.r.x / AU_KM, st.r.y / AU_KM);
                     painter.circle_filled(p, 4.5, style::body_color(&s.body));
-                    painter.text(p + vec2(6.0, -6.0), Align2::LEFT_BOTTOM, &s.body, FontId::proportional(12.0), style::body_color(&s.body));
+                    painter.text(
+                        p + vec2(6.0, -6.0),
+                        Align2::LEFT_BOTTOM,
+                        &s.body,
+                        FontId::proportional(12.0),
+                        style::body_color(&s.body),
+                    );
                 }
             }
         }
         if let Some(sc) = self.spacecraft_at(t_now) {
             let p = to_screen(sc[0], sc[1]);
-            painter.circle_stroke(p, 6.0, Stroke::new(2.0, if dark { Color32::WHITE } else { Color32::BLACK }));
+            painter.circle_stroke(
+                p,
+                6.0,
+                Stroke::new(2.0, if dark { Color32::WHITE } else { Color32::BLACK }),
+            );
             painter.circle_filled(p, 2.5, if dark { Color32::WHITE } else { Color32::BLACK });
         }
         // Stop symbols at the stop epochs.
-        let outline = if dark { Color32::from_gray(20) } else { Color32::WHITE };
+        let outline = if dark {
+            Color32::from_gray(20)
+        } else {
+            Color32::WHITE
+        };
         let mut clicked_stop = None;
         for (k, st) in self.eval.stops.iter().enumerate() {
             let p = to_screen(st.body_state.r.x / AU_KM, st.body_state.r.y / AU_KM);
-            let color = if k == 0 { style::leg_color(0) } else { style::leg_color(k - 1) };
+            let color = if k == 0 {
+                style::leg_color(0)
+            } else {
+                style::leg_color(k - 1)
+            };
             let size = if self.selected == k { 9.0 } else { 7.0 };
             style::stop_marker(&painter, p, st.kind, color, size, outline);
             painter.text(
@@ -197,7 +256,11 @@ impl TourwrightApp {
                 Align2::LEFT_TOP,
                 format!("{} {}", d.stops[k].body, st.epoch.to_date_utc()),
                 FontId::proportional(11.0),
-                if dark { Color32::from_gray(200) } else { Color32::from_gray(60) },
+                if dark {
+                    Color32::from_gray(200)
+                } else {
+                    Color32::from_gray(60)
+                },
             );
             if resp.clicked() && pointer.is_some_and(|q| q.distance(p) < 12.0) {
                 clicked_stop = Some(k);
@@ -208,24 +271,52 @@ impl TourwrightApp {
         }
         // Scale bar.
         let nice = [0.05, 0.1, 0.2, 0.5, 1.0, 2.0, 5.0, 10.0, 20.0];
-        let au = nice.iter().copied().find(|&a| a as f32 * scale >= 80.0).unwrap_or(50.0);
+        let au = nice
+            .iter()
+            .copied()
+            .find(|&a| a as f32 * scale >= 80.0)
+            .unwrap_or(50.0);
         let y = rect.bottom() - 18.0;
         let x0 = rect.left() + 16.0;
         let x1 = x0 + au as f32 * scale;
-        let sc = if dark { Color32::from_gray(210) } else { Color32::from_gray(40) };
+        let sc = if dark {
+            Color32::from_gray(210)
+        } else {
+            Color32::from_gray(40)
+        };
         painter.line_segment([pos2(x0, y), pos2(x1, y)], Stroke::new(2.0, sc));
         painter.line_segment([pos2(x0, y - 4.0), pos2(x0, y + 4.0)], Stroke::new(1.5, sc));
         painter.line_segment([pos2(x1, y - 4.0), pos2(x1, y + 4.0)], Stroke::new(1.5, sc));
-        painter.text(pos2(0.5 * (x0 + x1), y - 6.0), Align2::CENTER_BOTTOM, format!("{au} AU"), FontId::proportional(12.0), sc);
-        painter.text(rect.right_top() + vec2(-8.0, 8.0), Align2::RIGHT_TOP, "ecliptic J2000 · x to vernal equinox", FontId::proportional(11.0), sc);
+        painter.text(
+            pos2(0.5 * (x0 + x1), y - 6.0),
+            Align2::CENTER_BOTTOM,
+            format!("{au} AU"),
+            FontId::proportional(12.0),
+            sc,
+        );
+        painter.text(
+            rect.right_top() + vec2(-8.0, 8.0),
+            Align2::RIGHT_TOP,
+            "ecliptic J2000 · x to vernal equinox",
+            FontId::proportional(11.0),
+            sc,
+        );
         // Legend of legs.
         for k in 0..self.eval.legs.len() {
             let yy = rect.top() + 12.0 + 16.0 * k as f32;
-            painter.line_segment([pos2(rect.left() + 10.0, yy), pos2(rect.left() + 30.0, yy)], Stroke::new(3.0, style::leg_color(k)));
+            painter.line_segment(
+                [pos2(rect.left() + 10.0, yy), pos2(rect.left() + 30.0, yy)],
+                Stroke::new(3.0, style::leg_color(k)),
+            );
             painter.text(
                 pos2(rect.left() + 36.0, yy),
                 Align2::LEFT_CENTER,
-                format!("leg {}: {} to {}", k + 1, d.stops[k].body, d.stops.get(k + 1).map(|s| s.body.as_str()).unwrap_or("")),
+                format!(
+                    "leg {}: {} to {}",
+                    k + 1,
+                    d.stops[k].body,
+                    d.stops.get(k + 1).map(|s| s.body.as_str()).unwrap_or("")
+                ),
                 FontId::proportional(12.0),
                 sc,
             );
@@ -258,7 +349,11 @@ impl TourwrightApp {
             return Some([l.x / AU_KM, l.y / AU_KM]);
         }
         let (a, b) = (&s[i - 1], &s[i]);
-        let f = if b.t.tdb_s > a.t.tdb_s { (t.tdb_s - a.t.tdb_s) / (b.t.tdb_s - a.t.tdb_s) } else { 0.0 };
+        let f = if b.t.tdb_s > a.t.tdb_s {
+            (t.tdb_s - a.t.tdb_s) / (b.t.tdb_s - a.t.tdb_s)
+        } else {
+            0.0
+        };
         let r = a.state.r + (b.state.r - a.state.r) * f;
         Some([r.x / AU_KM, r.y / AU_KM])
     }

@@ -6,7 +6,9 @@
 //! polygon assembly, unsolved cells left as holes); it is about forty lines and what the view
 //! needs, so no contouring crate is pulled in.
 
-use eframe::egui::{self, Align2, Color32, FontId, Pos2, Rect, RichText, Sense, Stroke, TextureHandle, pos2, vec2};
+use eframe::egui::{
+    self, Align2, Color32, FontId, Pos2, Rect, RichText, Sense, Stroke, TextureHandle, pos2, vec2,
+};
 
 use crate::astro::bodies::Planet;
 use crate::astro::time::Epoch;
@@ -17,6 +19,9 @@ use crate::search::window::{self, Quantity, SecondAxis, WindowMap, WindowSpec};
 
 use super::app::{GuiJob, TourwrightApp};
 use super::style;
+
+/// Contour segments with their level.
+pub type LevelSegments = Vec<(f64, [f32; 4])>;
 
 /// Form values and the computed map.
 pub struct WindowViewState {
@@ -51,7 +56,7 @@ pub struct WindowViewState {
     /// Compute as soon as the view is shown (after the form was centred on a leg).
     pub auto: bool,
     texture: Option<(TextureHandle, Quantity, u64)>,
-    contours: Option<(Quantity, u64, Vec<(f64, [f32; 4])>)>,
+    contours: Option<(Quantity, u64, LevelSegments)>,
     map_id: u64,
 }
 
@@ -90,9 +95,15 @@ impl WindowViewState {
         let tof = b.days() - a.days();
         self.from = d.stops[k].body.clone();
         self.to = d.stops[k + 1].body.clone();
-        self.depart = (a.plus_days(-90.0).to_date_utc(), a.plus_days(90.0).to_date_utc());
+        self.depart = (
+            a.plus_days(-90.0).to_date_utc(),
+            a.plus_days(90.0).to_date_utc(),
+        );
         let half = (0.35 * tof).clamp(30.0, 400.0);
-        self.arrive = (b.plus_days(-half).to_date_utc(), b.plus_days(half).to_date_utc());
+        self.arrive = (
+            b.plus_days(-half).to_date_utc(),
+            b.plus_days(half).to_date_utc(),
+        );
         self.revs = d.leg(k).revolutions;
         self.leg = Some(k);
         self.map = None;
@@ -103,14 +114,28 @@ impl WindowViewState {
 
 /// Marching squares over a grid of `nx × ny` values (row-major by j); `None` marks holes.
 /// Returns segments [x0, y0, x1, y1] in grid coordinates.
-pub fn contour_segments(nx: usize, ny: usize, value: impl Fn(usize, usize) -> Option<f64>, level: f64, out: &mut Vec<[f32; 4]>) {
+pub fn contour_segments(
+    nx: usize,
+    ny: usize,
+    value: impl Fn(usize, usize) -> Option<f64>,
+    level: f64,
+    out: &mut Vec<[f32; 4]>,
+) {
     for j in 0..ny.saturating_sub(1) {
         for i in 0..nx.saturating_sub(1) {
-            let (Some(a), Some(b), Some(c), Some(d)) = (value(i, j), value(i + 1, j), value(i + 1, j + 1), value(i, j + 1)) else {
+            let (Some(a), Some(b), Some(c), Some(d)) = (
+                value(i, j),
+                value(i + 1, j),
+                value(i + 1, j + 1),
+                value(i, j + 1),
+            ) else {
                 continue;
             };
             // Corners counter-clockwise: a (i,j), b (i+1,j), c (i+1,j+1), d (i,j+1).
-            let idx = (a > level) as u8 | ((b > level) as u8) << 1 | ((c > level) as u8) << 2 | ((d > level) as u8) << 3;
+            let idx = (a > level) as u8
+                | ((b > level) as u8) << 1
+                | ((c > level) as u8) << 2
+                | ((d > level) as u8) << 3;
             if idx == 0 || idx == 15 {
                 continue;
             }
@@ -152,7 +177,11 @@ pub fn nice_levels(lo: f64, hi: f64, n: usize) -> Vec<f64> {
     }
     let raw = (hi - lo) / n as f64;
     let mag = 10f64.powf(raw.log10().floor());
-    let step = [1.0, 2.0, 2.5, 5.0, 10.0].iter().map(|m| m * mag).find(|s| *s >= raw).unwrap_or(10.0 * mag);
+    let step = [1.0, 2.0, 2.5, 5.0, 10.0]
+        .iter()
+        .map(|m| m * mag)
+        .find(|s| *s >= raw)
+        .unwrap_or(10.0 * mag);
     let mut v = Vec::new();
     let mut x = (lo / step).ceil() * step;
     while x <= hi && v.len() < 40 {
@@ -190,7 +219,10 @@ impl TourwrightApp {
                 second,
                 nx: w.steps,
                 ny: w.steps,
-                leg: LegOptions { revolutions: w.revs, ..Default::default() },
+                leg: LegOptions {
+                    revolutions: w.revs,
+                    ..Default::default()
+                },
                 goal: self.doc.design.arrival,
             })
         })();
@@ -200,7 +232,10 @@ impl TourwrightApp {
                 self.window.error = None;
                 let base = self.doc.design.clone();
                 self.jobs.retain(|j| !matches!(j, GuiJob::Window(_)));
-                self.jobs.push(GuiJob::Window(Job::spawn("window map", move |p| window::compute(&base, &spec, &p))));
+                self.jobs
+                    .push(GuiJob::Window(Job::spawn("window map", move |p| {
+                        window::compute(&base, &spec, &p)
+                    })));
             }
         }
     }
@@ -208,17 +243,32 @@ impl TourwrightApp {
     /// The window-map view.
     pub fn window_view(&mut self, ui: &mut egui::Ui) {
         let dark = self.settings.dark;
-        let names: Vec<String> = Planet::ALL.iter().map(|p| p.name().to_string()).chain(self.doc.design.user_bodies.iter().map(|u| u.name.clone())).collect();
+        let names: Vec<String> = Planet::ALL
+            .iter()
+            .map(|p| p.name().to_string())
+            .chain(self.doc.design.user_bodies.iter().map(|u| u.name.clone()))
+            .collect();
         let n_legs = self.doc.design.stops.len().saturating_sub(1);
         ui.horizontal_wrapped(|ui| {
             ui.label("Leg");
             let mut leg = self.window.leg;
-            egui::ComboBox::from_id_salt("wm-leg").selected_text(leg.map(|k| format!("{}", k + 1)).unwrap_or("free".into())).show_ui(ui, |ui| {
-                ui.selectable_value(&mut leg, None, "free");
-                for k in 0..n_legs {
-                    ui.selectable_value(&mut leg, Some(k), format!("{} ({} to {})", k + 1, self.doc.design.stops[k].body, self.doc.design.stops[k + 1].body));
-                }
-            });
+            egui::ComboBox::from_id_salt("wm-leg")
+                .selected_text(leg.map(|k| format!("{}", k + 1)).unwrap_or("free".into()))
+                .show_ui(ui, |ui| {
+                    ui.selectable_value(&mut leg, None, "free");
+                    for k in 0..n_legs {
+                        ui.selectable_value(
+                            &mut leg,
+                            Some(k),
+                            format!(
+                                "{} ({} to {})",
+                                k + 1,
+                                self.doc.design.stops[k].body,
+                                self.doc.design.stops[k + 1].body
+                            ),
+                        );
+                    }
+                });
             if leg != self.window.leg {
                 match leg {
                     Some(k) => self.window.reset_from_design(&self.doc.design, k),
@@ -227,15 +277,25 @@ impl TourwrightApp {
             }
             for (label, v) in [("from", 0), ("to", 1)] {
                 ui.label(label);
-                let cur = if v == 0 { self.window.from.clone() } else { self.window.to.clone() };
+                let cur = if v == 0 {
+                    self.window.from.clone()
+                } else {
+                    self.window.to.clone()
+                };
                 let mut sel = cur.clone();
-                egui::ComboBox::from_id_salt(("wm-body", v)).selected_text(sel.clone()).show_ui(ui, |ui| {
-                    for n in &names {
-                        ui.selectable_value(&mut sel, n.clone(), n);
-                    }
-                });
+                egui::ComboBox::from_id_salt(("wm-body", v))
+                    .selected_text(sel.clone())
+                    .show_ui(ui, |ui| {
+                        for n in &names {
+                            ui.selectable_value(&mut sel, n.clone(), n);
+                        }
+                    });
                 if sel != cur {
-                    if v == 0 { self.window.from = sel } else { self.window.to = sel }
+                    if v == 0 {
+                        self.window.from = sel
+                    } else {
+                        self.window.to = sel
+                    }
                     self.window.leg = None;
                 }
             }
@@ -256,10 +316,21 @@ impl TourwrightApp {
                 ui.label("..");
                 ui.add(egui::TextEdit::singleline(&mut self.window.arrive.1).desired_width(90.0));
             }
-            ui.add(egui::DragValue::new(&mut self.window.steps).range(20..=1000).prefix("cells "));
-            ui.add(egui::DragValue::new(&mut self.window.revs).range(0..=4).prefix("revs "));
+            ui.add(
+                egui::DragValue::new(&mut self.window.steps)
+                    .range(20..=1000)
+                    .prefix("cells "),
+            );
+            ui.add(
+                egui::DragValue::new(&mut self.window.revs)
+                    .range(0..=4)
+                    .prefix("revs "),
+            );
             let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Window(_)));
-            if ui.add_enabled(!running, egui::Button::new("Compute")).clicked() {
+            if ui
+                .add_enabled(!running, egui::Button::new("Compute"))
+                .clicked()
+            {
                 self.start_window();
             }
             if running {
@@ -272,7 +343,10 @@ impl TourwrightApp {
                 ui.selectable_value(&mut self.window.quantity, q, q.label());
             }
         });
-        if self.window.auto && self.window.map.is_none() && !self.jobs.iter().any(|j| matches!(j, GuiJob::Window(_))) {
+        if self.window.auto
+            && self.window.map.is_none()
+            && !self.jobs.iter().any(|j| matches!(j, GuiJob::Window(_)))
+        {
             self.window.auto = false;
             self.start_window();
         }
@@ -291,10 +365,23 @@ impl TourwrightApp {
         let q = self.window.quantity;
         let map = self.window.map.as_ref().expect("checked").clone();
         let (nx, ny) = (map.spec.nx, map.spec.ny);
-        let id = map.depart.first().map(|e| e.tdb_s.to_bits()).unwrap_or(0) ^ (nx * 7919 + ny) as u64 ^ map.cells.len() as u64 ^ (map.cells.iter().take(64).map(|c| c.c3.to_bits()).fold(0u64, |a, b| a.rotate_left(5) ^ b));
+        let id = map.depart.first().map(|e| e.tdb_s.to_bits()).unwrap_or(0)
+            ^ (nx * 7919 + ny) as u64
+            ^ map.cells.len() as u64
+            ^ (map
+                .cells
+                .iter()
+                .take(64)
+                .map(|c| c.c3.to_bits())
+                .fold(0u64, |a, b| a.rotate_left(5) ^ b));
         self.window.map_id = id;
         // Colour range: from the minimum to a cap (default: min + 4 × (median − min)).
-        let mut vals: Vec<f64> = map.cells.iter().filter(|c| c.solved).map(|c| q.of(c)).collect();
+        let mut vals: Vec<f64> = map
+            .cells
+            .iter()
+            .filter(|c| c.solved)
+            .map(|c| q.of(c))
+            .collect();
         if vals.is_empty() {
             ui.label("No cell has a solution for these dates.");
             return;
@@ -303,11 +390,20 @@ impl TourwrightApp {
         let lo = vals[0];
         // Scale on the lower part of the map: the 180° ridge and the far corners would squash it.
         let p30 = vals[vals.len() * 3 / 10];
-        let auto_cap = (lo + 3.0 * (p30 - lo)).min(vals[vals.len() - 1]).max(lo + 1e-9);
+        let auto_cap = (lo + 3.0 * (p30 - lo))
+            .min(vals[vals.len() - 1])
+            .max(lo + 1e-9);
         let mut cap = self.window.cap.unwrap_or(auto_cap);
         ui.horizontal(|ui| {
             ui.label("colour scale up to");
-            if ui.add(egui::DragValue::new(&mut cap).speed((auto_cap - lo) * 0.01).range(lo..=vals[vals.len() - 1])).changed() {
+            if ui
+                .add(
+                    egui::DragValue::new(&mut cap)
+                        .speed((auto_cap - lo) * 0.01)
+                        .range(lo..=vals[vals.len() - 1]),
+                )
+                .changed()
+            {
                 self.window.cap = Some(cap);
                 self.window.texture = None;
                 self.window.contours = None;
@@ -319,11 +415,20 @@ impl TourwrightApp {
             }
             if let Some((i, j, v)) = map.minimum(q) {
                 let (a, b) = map.epochs(i, j);
-                ui.label(format!("minimum {v:.3} · depart {} · arrive {} · {:.0} d", a.to_date_utc(), b.to_date_utc(), b.days() - a.days()));
+                ui.label(format!(
+                    "minimum {v:.3} · depart {} · arrive {} · {:.0} d",
+                    a.to_date_utc(),
+                    b.to_date_utc(),
+                    b.days() - a.days()
+                ));
             }
         });
         // Texture.
-        let need_tex = self.window.texture.as_ref().is_none_or(|(_, tq, tid)| *tq != q || *tid != id);
+        let need_tex = self
+            .window
+            .texture
+            .as_ref()
+            .is_none_or(|(_, tq, tid)| *tq != q || *tid != id);
         if need_tex {
             let mut img = egui::ColorImage::new([nx, ny], vec![Color32::TRANSPARENT; nx * ny]);
             for j in 0..ny {
@@ -333,7 +438,15 @@ impl TourwrightApp {
                     let px = &mut img.pixels[(ny - 1 - j) * nx + i];
                     *px = if c.solved {
                         let t = ((q.of(c) - lo) / (cap - lo)) as f32;
-                        if t > 1.0 { if dark { Color32::from_gray(40) } else { Color32::from_gray(225) } } else { style::ramp(t) }
+                        if t > 1.0 {
+                            if dark {
+                                Color32::from_gray(40)
+                            } else {
+                                Color32::from_gray(225)
+                            }
+                        } else {
+                            style::ramp(t)
+                        }
                     } else if dark {
                         Color32::from_gray(22)
                     } else {
@@ -341,15 +454,30 @@ impl TourwrightApp {
                     };
                 }
             }
-            let tex = ui.ctx().load_texture("window-map", img, egui::TextureOptions::NEAREST);
+            let tex = ui
+                .ctx()
+                .load_texture("window-map", img, egui::TextureOptions::NEAREST);
             self.window.texture = Some((tex, q, id));
         }
-        let need_contours = self.window.contours.as_ref().is_none_or(|(cq, cid, _)| *cq != q || *cid != id);
+        let need_contours = self
+            .window
+            .contours
+            .as_ref()
+            .is_none_or(|(cq, cid, _)| *cq != q || *cid != id);
         if need_contours {
             let mut out = Vec::new();
             for lv in nice_levels(lo, cap, 9) {
                 let mut segs = Vec::new();
-                contour_segments(nx, ny, |i, j| { let c = map.cell(i, j); c.solved.then(|| q.of(c)) }, lv, &mut segs);
+                contour_segments(
+                    nx,
+                    ny,
+                    |i, j| {
+                        let c = map.cell(i, j);
+                        c.solved.then(|| q.of(c))
+                    },
+                    lv,
+                    &mut segs,
+                );
                 out.extend(segs.into_iter().map(|s| (lv, s)));
             }
             self.window.contours = Some((q, id, out));
@@ -359,12 +487,18 @@ impl TourwrightApp {
         let (resp, painter) = ui.allocate_painter(size, Sense::click_and_drag());
         let full = resp.rect;
         let plot = Rect::from_min_max(full.min + vec2(70.0, 10.0), full.max - vec2(80.0, 40.0));
-        let view = self.window.view.unwrap_or(Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)));
+        let view = self
+            .window
+            .view
+            .unwrap_or(Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)));
         // Grid coords (i, j) -> normalised (u, v) -> screen.
         let to_screen = |gi: f32, gj: f32| -> Pos2 {
             let u = gi / (nx - 1) as f32;
             let v = gj / (ny - 1) as f32;
-            pos2(plot.left() + (u - view.min.x) / view.width() * plot.width(), plot.bottom() - (v - view.min.y) / view.height() * plot.height())
+            pos2(
+                plot.left() + (u - view.min.x) / view.width() * plot.width(),
+                plot.bottom() - (v - view.min.y) / view.height() * plot.height(),
+            )
         };
         let from_screen = |p: Pos2| -> (f32, f32) {
             let u = view.min.x + (p.x - plot.left()) / plot.width() * view.width();
@@ -379,12 +513,24 @@ impl TourwrightApp {
             let a = to_screen(-0.5, -0.5);
             let b = to_screen((nx - 1) as f32 + 0.5, (ny - 1) as f32 + 0.5);
             let _ = (hx, hy);
-            p2.image(tex.id(), Rect::from_two_pos(a, b), Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)), Color32::WHITE);
+            p2.image(
+                tex.id(),
+                Rect::from_two_pos(a, b),
+                Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)),
+                Color32::WHITE,
+            );
         }
-        let line_c = if dark { Color32::from_rgba_unmultiplied(255, 255, 255, 170) } else { Color32::from_rgba_unmultiplied(0, 0, 0, 160) };
+        let line_c = if dark {
+            Color32::from_rgba_unmultiplied(255, 255, 255, 170)
+        } else {
+            Color32::from_rgba_unmultiplied(0, 0, 0, 160)
+        };
         if let Some((_, _, segs)) = &self.window.contours {
             for (_, s) in segs {
-                p2.line_segment([to_screen(s[0], s[1]), to_screen(s[2], s[3])], Stroke::new(1.0, line_c));
+                p2.line_segment(
+                    [to_screen(s[0], s[1]), to_screen(s[2], s[3])],
+                    Stroke::new(1.0, line_c),
+                );
             }
             // One label per level, at the visible segment nearest the middle of the view.
             let mid = plot.center();
@@ -401,15 +547,35 @@ impl TourwrightApp {
                     None => best.push((*lv, d, a)),
                 }
             }
-            let bg = if dark { Color32::from_rgba_unmultiplied(0, 0, 0, 150) } else { Color32::from_rgba_unmultiplied(255, 255, 255, 170) };
+            let bg = if dark {
+                Color32::from_rgba_unmultiplied(0, 0, 0, 150)
+            } else {
+                Color32::from_rgba_unmultiplied(255, 255, 255, 170)
+            };
             for (lv, _, a) in best {
-                let r = p2.text(a, Align2::CENTER_CENTER, format!("{lv}"), FontId::proportional(11.0), line_c);
+                let r = p2.text(
+                    a,
+                    Align2::CENTER_CENTER,
+                    format!("{lv}"),
+                    FontId::proportional(11.0),
+                    line_c,
+                );
                 p2.rect_filled(r.expand(1.0), 2.0, bg);
-                p2.text(a, Align2::CENTER_CENTER, format!("{lv}"), FontId::proportional(11.0), line_c);
+                p2.text(
+                    a,
+                    Align2::CENTER_CENTER,
+                    format!("{lv}"),
+                    FontId::proportional(11.0),
+                    line_c,
+                );
             }
         }
         // Lines of constant TOF when both axes are dates.
-        let text_c = if dark { Color32::from_gray(210) } else { Color32::from_gray(40) };
+        let text_c = if dark {
+            Color32::from_gray(210)
+        } else {
+            Color32::from_gray(40)
+        };
         if let SecondAxis::Arrival(a0, a1) = map.spec.second {
             let (d0, d1) = (map.depart[0].days(), map.depart[nx - 1].days());
             let (r0, r1) = (a0.days(), a1.days());
@@ -421,10 +587,21 @@ impl TourwrightApp {
                 let gj = |rr: f64| ((rr - r0) / (r1 - r0) * (ny - 1) as f64) as f32;
                 let a = to_screen(gi(d0), gj(d0 + t));
                 let b = to_screen(gi(d1), gj(d1 + t));
-                p2.extend(egui::Shape::dashed_line(&[a, b], Stroke::new(1.0, style::SUN), 6.0, 5.0));
+                p2.extend(egui::Shape::dashed_line(
+                    &[a, b],
+                    Stroke::new(1.0, style::SUN),
+                    6.0,
+                    5.0,
+                ));
                 let mid = pos2(0.5 * (a.x + b.x), 0.5 * (a.y + b.y));
                 if plot.contains(mid) {
-                    p2.text(mid, Align2::LEFT_BOTTOM, format!("{t:.0} d"), FontId::proportional(11.0), style::SUN);
+                    p2.text(
+                        mid,
+                        Align2::LEFT_BOTTOM,
+                        format!("{t:.0} d"),
+                        FontId::proportional(11.0),
+                        style::SUN,
+                    );
                 }
             }
         }
@@ -432,30 +609,60 @@ impl TourwrightApp {
         if let Some((i, j, _)) = map.minimum(q) {
             let p = to_screen(i as f32, j as f32);
             p2.circle_stroke(p, 7.0, Stroke::new(2.0, Color32::WHITE));
-            p2.line_segment([p - vec2(10.0, 0.0), p + vec2(10.0, 0.0)], Stroke::new(1.5, Color32::BLACK));
-            p2.line_segment([p - vec2(0.0, 10.0), p + vec2(0.0, 10.0)], Stroke::new(1.5, Color32::BLACK));
+            p2.line_segment(
+                [p - vec2(10.0, 0.0), p + vec2(10.0, 0.0)],
+                Stroke::new(1.5, Color32::BLACK),
+            );
+            p2.line_segment(
+                [p - vec2(0.0, 10.0), p + vec2(0.0, 10.0)],
+                Stroke::new(1.5, Color32::BLACK),
+            );
         }
         // The design's own leg dates.
         if let Some(k) = self.window.leg {
             if k + 1 < self.doc.design.stops.len() {
-                let (a, b) = (self.doc.design.stops[k].epoch, self.doc.design.stops[k + 1].epoch);
-                let gi = ((a.days() - map.depart[0].days()) / (map.depart[nx - 1].days() - map.depart[0].days()) * (nx - 1) as f64) as f32;
+                let (a, b) = (
+                    self.doc.design.stops[k].epoch,
+                    self.doc.design.stops[k + 1].epoch,
+                );
+                let gi = ((a.days() - map.depart[0].days())
+                    / (map.depart[nx - 1].days() - map.depart[0].days())
+                    * (nx - 1) as f64) as f32;
                 let yv = match map.spec.second {
                     SecondAxis::Arrival(..) => b.mjd2000(),
                     SecondAxis::Tof(..) => b.days() - a.days(),
                 };
-                let gj = ((yv - map.second[0]) / (map.second[ny - 1] - map.second[0]) * (ny - 1) as f64) as f32;
+                let gj = ((yv - map.second[0]) / (map.second[ny - 1] - map.second[0])
+                    * (ny - 1) as f64) as f32;
                 let p = to_screen(gi, gj);
-                style::stop_marker(&p2, p, crate::mission::evaluate::StopKind::SwingBy, style::leg_color(k), 7.0, Color32::WHITE);
+                style::stop_marker(
+                    &p2,
+                    p,
+                    crate::mission::evaluate::StopKind::SwingBy,
+                    style::leg_color(k),
+                    7.0,
+                    Color32::WHITE,
+                );
             }
         }
         // Axes.
-        painter.rect_stroke(plot, 0.0, Stroke::new(1.0, text_c), egui::StrokeKind::Outside);
+        painter.rect_stroke(
+            plot,
+            0.0,
+            Stroke::new(1.0, text_c),
+            egui::StrokeKind::Outside,
+        );
         for f in [0.0f32, 0.25, 0.5, 0.75, 1.0] {
             let u = view.min.x + f * view.width();
             let i = (u * (nx - 1) as f32).round().clamp(0.0, (nx - 1) as f32) as usize;
             let x = plot.left() + f * plot.width();
-            painter.text(pos2(x, plot.bottom() + 4.0), Align2::CENTER_TOP, map.depart[i].to_date_utc(), FontId::proportional(11.0), text_c);
+            painter.text(
+                pos2(x, plot.bottom() + 4.0),
+                Align2::CENTER_TOP,
+                map.depart[i].to_date_utc(),
+                FontId::proportional(11.0),
+                text_c,
+            );
             let v = view.min.y + f * view.height();
             let j = (v * (ny - 1) as f32).round().clamp(0.0, (ny - 1) as f32) as usize;
             let y = plot.bottom() - f * plot.height();
@@ -463,18 +670,48 @@ impl TourwrightApp {
                 SecondAxis::Arrival(..) => Epoch::from_mjd2000(map.second[j]).to_date_utc(),
                 SecondAxis::Tof(..) => format!("{:.0} d", map.second[j]),
             };
-            painter.text(pos2(plot.left() - 4.0, y), Align2::RIGHT_CENTER, label, FontId::proportional(11.0), text_c);
+            painter.text(
+                pos2(plot.left() - 4.0, y),
+                Align2::RIGHT_CENTER,
+                label,
+                FontId::proportional(11.0),
+                text_c,
+            );
         }
-        painter.text(pos2(plot.center().x, full.bottom() - 2.0), Align2::CENTER_BOTTOM, format!("departure from {} (UTC)", map.spec.from), FontId::proportional(12.0), text_c);
+        painter.text(
+            pos2(plot.center().x, full.bottom() - 2.0),
+            Align2::CENTER_BOTTOM,
+            format!("departure from {} (UTC)", map.spec.from),
+            FontId::proportional(12.0),
+            text_c,
+        );
         // Colour bar.
-        let bar = Rect::from_min_max(pos2(plot.right() + 12.0, plot.top()), pos2(plot.right() + 26.0, plot.bottom()));
+        let bar = Rect::from_min_max(
+            pos2(plot.right() + 12.0, plot.top()),
+            pos2(plot.right() + 26.0, plot.bottom()),
+        );
         for s in 0..64 {
             let t0 = s as f32 / 64.0;
-            let r = Rect::from_min_max(pos2(bar.left(), bar.bottom() - (t0 + 1.0 / 64.0) * bar.height()), pos2(bar.right(), bar.bottom() - t0 * bar.height()));
+            let r = Rect::from_min_max(
+                pos2(bar.left(), bar.bottom() - (t0 + 1.0 / 64.0) * bar.height()),
+                pos2(bar.right(), bar.bottom() - t0 * bar.height()),
+            );
             painter.rect_filled(r, 0.0, style::ramp(t0));
         }
-        painter.text(bar.right_top() + vec2(3.0, 0.0), Align2::LEFT_TOP, format!("{cap:.1}"), FontId::proportional(11.0), text_c);
-        painter.text(bar.right_bottom() + vec2(3.0, 0.0), Align2::LEFT_BOTTOM, format!("{lo:.1}"), FontId::proportional(11.0), text_c);
+        painter.text(
+            bar.right_top() + vec2(3.0, 0.0),
+            Align2::LEFT_TOP,
+            format!("{cap:.1}"),
+            FontId::proportional(11.0),
+            text_c,
+        );
+        painter.text(
+            bar.right_bottom() + vec2(3.0, 0.0),
+            Align2::LEFT_BOTTOM,
+            format!("{lo:.1}"),
+            FontId::proportional(11.0),
+            text_c,
+        );
         // Interaction: zoom, pan, hover, click.
         if resp.hovered() {
             let scroll = ui.input(|i| i.smooth_scroll_delta.y);
@@ -482,14 +719,20 @@ impl TourwrightApp {
                 if let Some(p) = resp.hover_pos() {
                     let (u, v) = from_screen(p);
                     let f = (1.0 - scroll * 0.002).clamp(0.5, 1.5);
-                    let nv = Rect::from_min_max(pos2(u - (u - view.min.x) * f, v - (v - view.min.y) * f), pos2(u + (view.max.x - u) * f, v + (view.max.y - v) * f));
+                    let nv = Rect::from_min_max(
+                        pos2(u - (u - view.min.x) * f, v - (v - view.min.y) * f),
+                        pos2(u + (view.max.x - u) * f, v + (view.max.y - v) * f),
+                    );
                     self.window.view = Some(nv);
                 }
             }
         }
         if resp.dragged() {
             let dd = resp.drag_delta();
-            let nv = view.translate(vec2(-dd.x / plot.width() * view.width(), dd.y / plot.height() * view.height()));
+            let nv = view.translate(vec2(
+                -dd.x / plot.width() * view.width(),
+                dd.y / plot.height() * view.height(),
+            ));
             self.window.view = Some(nv);
         }
         if resp.double_clicked() {
@@ -502,17 +745,30 @@ impl TourwrightApp {
             let (u, v) = from_screen(p);
             let i = (u * (nx - 1) as f32).round();
             let j = (v * (ny - 1) as f32).round();
-            (i >= 0.0 && j >= 0.0 && (i as usize) < nx && (j as usize) < ny).then_some((i as usize, j as usize))
+            (i >= 0.0 && j >= 0.0 && (i as usize) < nx && (j as usize) < ny)
+                .then_some((i as usize, j as usize))
         };
         let hovered = resp.hover_pos().and_then(cell_at);
-        let clicked = if resp.clicked() { resp.interact_pointer_pos().and_then(cell_at) } else { None };
+        let clicked = if resp.clicked() {
+            resp.interact_pointer_pos().and_then(cell_at)
+        } else {
+            None
+        };
         if let Some((i, j)) = hovered {
             let c = *map.cell(i, j);
             let (a, b) = map.epochs(i, j);
             resp.on_hover_ui_at_pointer(|ui| {
-                ui.label(format!("depart {} · arrive {} · {:.0} d", a.to_date_utc(), b.to_date_utc(), c.tof_days));
+                ui.label(format!(
+                    "depart {} · arrive {} · {:.0} d",
+                    a.to_date_utc(),
+                    b.to_date_utc(),
+                    c.tof_days
+                ));
                 if c.solved {
-                    ui.label(format!("C3 {:.2} km²/s² · v∞ out {:.3} km/s · v∞ in {:.3} km/s", c.c3, c.vinf_depart, c.vinf_arrive));
+                    ui.label(format!(
+                        "C3 {:.2} km²/s² · v∞ out {:.3} km/s · v∞ in {:.3} km/s",
+                        c.c3, c.vinf_depart, c.vinf_arrive
+                    ));
                     ui.label(format!("launch v∞ + arrival Δv {:.3} km/s", c.total_dv));
                 } else {
                     ui.label("no arc");
@@ -528,25 +784,45 @@ impl TourwrightApp {
     fn window_click(&mut self, map: &WindowMap, i: usize, j: usize) {
         let (a, b) = map.epochs(i, j);
         let Some(k) = self.window.leg else {
-            self.status = Some(("choose a leg of the design to set its dates from the map".into(), true));
+            self.status = Some((
+                "choose a leg of the design to set its dates from the map".into(),
+                true,
+            ));
             return;
         };
         let d = &self.doc.design;
-        if k + 1 >= d.stops.len() || !d.stops[k].body.eq_ignore_ascii_case(&map.spec.from) || !d.stops[k + 1].body.eq_ignore_ascii_case(&map.spec.to) {
-            self.status = Some(("the map's bodies are not those of the chosen leg".into(), true));
+        if k + 1 >= d.stops.len()
+            || !d.stops[k].body.eq_ignore_ascii_case(&map.spec.from)
+            || !d.stops[k + 1].body.eq_ignore_ascii_case(&map.spec.to)
+        {
+            self.status = Some((
+                "the map's bodies are not those of the chosen leg".into(),
+                true,
+            ));
             return;
         }
         let prev_ok = k == 0 || d.stops[k - 1].epoch.tdb_s < a.tdb_s;
         let next_ok = k + 2 >= d.stops.len() || d.stops[k + 2].epoch.tdb_s > b.tdb_s;
         if !(prev_ok && next_ok) {
-            self.status = Some(("those dates would put the stops out of time order".into(), true));
+            self.status = Some((
+                "those dates would put the stops out of time order".into(),
+                true,
+            ));
             return;
         }
         self.doc.edit(|d| {
             d.stops[k].epoch = a;
             d.stops[k + 1].epoch = b;
         });
-        self.status = Some((format!("leg {} now departs {} and arrives {}", k + 1, a.to_date_utc(), b.to_date_utc()), false));
+        self.status = Some((
+            format!(
+                "leg {} now departs {} and arrives {}",
+                k + 1,
+                a.to_date_utc(),
+                b.to_date_utc()
+            ),
+            false,
+        ));
     }
 }
 
@@ -579,7 +855,10 @@ mod tests {
 
     #[test]
     fn nice_levels_are_round() {
-        assert_eq!(nice_levels(0.0, 10.0, 5), vec![0.0, 2.0, 4.0, 6.0, 8.0, 10.0]);
+        assert_eq!(
+            nice_levels(0.0, 10.0, 5),
+            vec![0.0, 2.0, 4.0, 6.0, 8.0, 10.0]
+        );
         assert!(nice_levels(3.0, 3.0, 5).is_empty());
     }
 }
