@@ -532,20 +532,24 @@ impl TourwrightApp {
                     Stroke::new(1.0, line_c),
                 );
             }
-            // One label per level, at the visible segment nearest the middle of the view.
-            let mid = plot.center();
+            // One label per level: from the middle of the level's segments outwards, the first
+            // visible spot at least 40 points away from labels already placed.
             let mut best: Vec<(f64, f32, Pos2)> = Vec::new();
-            for (lv, s) in segs {
-                let a = to_screen(s[0], s[1]);
-                if !plot.shrink(16.0).contains(a) {
-                    continue;
+            let mut start = 0;
+            while start < segs.len() {
+                let lv = segs[start].0;
+                let end = segs[start..].iter().position(|s| s.0 != lv).map_or(segs.len(), |n| start + n);
+                let mid = (start + end) / 2;
+                let order = (0..end - start).map(|k| if k % 2 == 0 { mid + k / 2 } else { mid.saturating_sub(k / 2 + 1) });
+                for idx in order.filter(|i| (start..end).contains(i)) {
+                    let s = segs[idx].1;
+                    let a = to_screen(s[0], s[1]);
+                    if plot.shrink(16.0).contains(a) && best.iter().all(|b| b.2.distance(a) > 40.0) {
+                        best.push((lv, 0.0, a));
+                        break;
+                    }
                 }
-                let d = a.distance(mid);
-                match best.iter_mut().find(|b| b.0 == *lv) {
-                    Some(b) if d < b.1 => *b = (*lv, d, a),
-                    Some(_) => {}
-                    None => best.push((*lv, d, a)),
-                }
+                start = end;
             }
             let bg = if dark {
                 Color32::from_rgba_unmultiplied(0, 0, 0, 150)
