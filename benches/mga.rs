@@ -18,7 +18,9 @@ const PROBLEMS: [(&str, f64, &str); 1] = [(
 
 fn main() {
     let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("benches/mga");
-    println!("| problem | budget (evaluations) | seeds | best (km/s) | median (km/s) | mean time (s) | published best |");
+    println!(
+        "| problem | budget (evaluations) | seeds | best (km/s) | median (km/s) | mean time (s) | published best |"
+    );
     println!("|---|---|---|---|---|---|---|");
     for (file, published, note) in PROBLEMS {
         let d = files::load(&dir.join(file)).expect("benchmark design loads");
@@ -28,7 +30,16 @@ fn main() {
             let t = Instant::now();
             let seeds = 10;
             for seed in 1..=seeds {
-                let r = optimize(&p, &OptimizeOptions { seed, max_evals: budget, ..Default::default() }, &Progress::new(), false);
+                let r = optimize(
+                    &p,
+                    &OptimizeOptions {
+                        seed,
+                        max_evals: budget,
+                        ..Default::default()
+                    },
+                    &Progress::new(),
+                    false,
+                );
                 vals.push(r.value);
             }
             let secs = t.elapsed().as_secs_f64() / seeds as f64;

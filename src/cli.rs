@@ -386,6 +386,8 @@ pub fn eval_json(d: &MissionDesign, e: &Evaluation) -> serde_json::Value {
                     "aim_deg": sw.bplane.aim.to_degrees(),
                     "planet_dv_km_s": sw.planet_dv_km_s,
                     "miss_km": sw.miss_km,
+                    "closest_approach_km": sw.closest_approach.map(|c| c.0),
+                    "closest_approach_utc": sw.closest_approach.map(|c| c.1.to_iso_utc()),
                 })
             });
             json!({
@@ -580,7 +582,7 @@ pub fn run(cmd: Command) -> CliResult {
                 if !e.complete {
                     return Err("the design has legs with no solution; nothing to export".into());
                 }
-                write(&p, &export::oem(&d, &e, now()))?;
+                write(&p, &export::oem(&d, &e, export::now()))?;
             }
             Ok(())
         }
@@ -810,18 +812,4 @@ pub fn run(cmd: Command) -> CliResult {
             Ok(())
         }
     }
-}
-
-/// The current time as an epoch (for file headers).
-pub fn now() -> Epoch {
-    let s = std::time::SystemTime::now()
-        .duration_since(std::time::UNIX_EPOCH)
-        .map(|d| d.as_secs_f64())
-        .unwrap_or(0.0);
-    // Unix time counts UTC days of 86 400 s from 1970-01-01 (MJD 40587).
-    let days = s / 86_400.0;
-    let mjd = 40_587.0 + days;
-    let (y, m, d) = crate::astro::time::calendar_from_mjd(mjd.floor() as i32);
-    let sec = (mjd - mjd.floor()) * 86_400.0;
-    Epoch::from_utc(y, m, d, 0, 0, 0.0).plus_days(sec / 86_400.0)
 }

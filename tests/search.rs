@@ -20,8 +20,14 @@ fn spec(nx: usize) -> WindowSpec {
     WindowSpec {
         from: "Earth".into(),
         to: "Mars".into(),
-        depart: (Epoch::parse("2033-01-01").unwrap(), Epoch::parse("2033-09-01").unwrap()),
-        second: SecondAxis::Arrival(Epoch::parse("2033-08-01").unwrap(), Epoch::parse("2034-08-01").unwrap()),
+        depart: (
+            Epoch::parse("2033-01-01").unwrap(),
+            Epoch::parse("2033-09-01").unwrap(),
+        ),
+        second: SecondAxis::Arrival(
+            Epoch::parse("2033-08-01").unwrap(),
+            Epoch::parse("2034-08-01").unwrap(),
+        ),
         nx,
         ny: nx,
         leg: Default::default(),
@@ -38,16 +44,26 @@ fn window_cells_equal_direct_lambert_and_minimum_is_the_grid_minimum() {
         let (t0, t1) = map.epochs(i, j);
         let e = Planet::Earth.state(t0).unwrap();
         let m = Planet::Mars.state(t1).unwrap();
-        let l = lambert::solve_single(&e.r, &m.r, t1.tdb_s - t0.tdb_s, MU_SUN, Direction::Prograde).unwrap();
+        let l = lambert::solve_single(&e.r, &m.r, t1.tdb_s - t0.tdb_s, MU_SUN, Direction::Prograde)
+            .unwrap();
         assert!(c.solved);
-        assert!((c.c3 - (l.v1 - e.v).norm_squared()).abs() < 1e-9, "cell {i},{j}");
+        assert!(
+            (c.c3 - (l.v1 - e.v).norm_squared()).abs() < 1e-9,
+            "cell {i},{j}"
+        );
         assert!((c.vinf_arrive - (l.v2 - m.v).norm()).abs() < 1e-12);
     }
     let (i, j, v) = map.minimum(Quantity::C3).unwrap();
     assert_eq!(v, map.cell(i, j).c3);
     assert!(map.cells.iter().filter(|c| c.solved).all(|c| c.c3 >= v));
     // Cells whose arrival precedes departure are unsolved, never NaN.
-    let s2 = WindowSpec { second: SecondAxis::Arrival(Epoch::parse("2032-01-01").unwrap(), Epoch::parse("2033-06-01").unwrap()), ..spec(11) };
+    let s2 = WindowSpec {
+        second: SecondAxis::Arrival(
+            Epoch::parse("2032-01-01").unwrap(),
+            Epoch::parse("2033-06-01").unwrap(),
+        ),
+        ..spec(11)
+    };
     let m2 = window::compute(&MissionDesign::new_blank(), &s2, &Progress::new()).unwrap();
     assert!(m2.cells.iter().any(|c| !c.solved));
     assert!(m2.cells.iter().all(|c| c.c3.is_finite()));
@@ -63,7 +79,10 @@ fn small_problem() -> Problem {
     d.stops[1].epoch = Epoch::parse("2033-11-01").unwrap();
     d.search.launch_earliest = Some(Epoch::parse("2033-01-01").unwrap());
     d.search.launch_latest = Some(Epoch::parse("2033-08-01").unwrap());
-    d.search.leg_tof = vec![TofBounds { min_days: 120.0, max_days: 420.0 }];
+    d.search.leg_tof = vec![TofBounds {
+        min_days: 120.0,
+        max_days: 420.0,
+    }];
     d.search.objective = Objective::TotalDvWithLaunchVinf;
     Problem::from_design(&d)
 }
@@ -84,14 +103,28 @@ fn optimiser_beats_an_exhaustive_grid_and_is_deterministic() {
             grid_best = grid_best.min(p.score(&x, &mut w));
         }
     }
-    let opts = OptimizeOptions { seed: 7, max_evals: 20_000, ..Default::default() };
+    let opts = OptimizeOptions {
+        seed: 7,
+        max_evals: 20_000,
+        ..Default::default()
+    };
     let a = optimize(&p, &opts, &Progress::new(), false);
-    assert!(a.value <= grid_best + 1e-9, "optimiser {} vs grid {}", a.value, grid_best);
+    assert!(
+        a.value <= grid_best + 1e-9,
+        "optimiser {} vs grid {}",
+        a.value,
+        grid_best
+    );
     // Same seed, same answer; another seed may take another path but also beats the grid.
     let b = optimize(&p, &opts, &Progress::new(), false);
     assert_eq!(a.x, b.x);
     assert_eq!(a.value, b.value);
-    let c = optimize(&p, &OptimizeOptions { seed: 8, ..opts }, &Progress::new(), true);
+    let c = optimize(
+        &p,
+        &OptimizeOptions { seed: 8, ..opts },
+        &Progress::new(),
+        true,
+    );
     assert!(c.value <= grid_best + 1e-9);
     // The trade-off front is non-dominated and sorted by TOF.
     assert!(!c.front.is_empty());
@@ -105,7 +138,17 @@ fn cancelling_stops_the_optimiser_promptly() {
     let p = small_problem();
     let progress = Progress::new();
     let p2 = progress.clone();
-    let h = std::thread::spawn(move || optimize(&p, &OptimizeOptions { max_evals: 500_000_000, ..Default::default() }, &p2, false));
+    let h = std::thread::spawn(move || {
+        optimize(
+            &p,
+            &OptimizeOptions {
+                max_evals: 500_000_000,
+                ..Default::default()
+            },
+            &p2,
+            false,
+        )
+    });
     std::thread::sleep(std::time::Duration::from_millis(300));
     progress.cancel();
     let r = h.join().unwrap();
@@ -122,7 +165,10 @@ fn explorer_ranks_a_jupiter_assist_ahead_of_a_mercury_detour_to_saturn() {
     let spec = ExploreSpec {
         from: Planet::Earth,
         to: Planet::Saturn,
-        launch: (Epoch::parse("2033-01-01").unwrap(), Epoch::parse("2034-06-30").unwrap()),
+        launch: (
+            Epoch::parse("2033-01-01").unwrap(),
+            Epoch::parse("2034-06-30").unwrap(),
+        ),
         via: vec![Planet::Jupiter, Planet::Mercury],
         max_swingbys: 1,
         max_tof_years: 10.0,
@@ -138,13 +184,23 @@ fn explorer_ranks_a_jupiter_assist_ahead_of_a_mercury_detour_to_saturn() {
         Some(me) => assert!(ejs < me),
         None => assert!(ex.pruned.iter().any(|(s, _)| s == "E-Me-S")),
     }
-    assert_eq!(ex.ranked[0].label, "E-J-S", "{:?}", ex.ranked.iter().map(|c| (&c.label, c.value)).collect::<Vec<_>>());
+    assert_eq!(
+        ex.ranked[0].label,
+        "E-J-S",
+        "{:?}",
+        ex.ranked
+            .iter()
+            .map(|c| (&c.label, c.value))
+            .collect::<Vec<_>>()
+    );
     assert!(ex.ranked[ejs].design.stops.len() == 3);
 }
 
 #[test]
 fn mga_benchmark_design_loads_and_evaluates() {
-    let d = files::load(&Path::new(env!("CARGO_MANIFEST_DIR")).join("benches/mga/cassini1.tour.ron")).unwrap();
+    let d =
+        files::load(&Path::new(env!("CARGO_MANIFEST_DIR")).join("benches/mga/cassini1.tour.ron"))
+            .unwrap();
     assert_eq!(d.sequence_label(), "E-V-V-E-J-S");
     let p = Problem::from_design(&d);
     assert_eq!(p.dim(), 6);

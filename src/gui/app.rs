@@ -445,7 +445,7 @@ impl TourwrightApp {
                     );
                     return;
                 }
-                export::oem(d, e, crate::cli::now())
+                export::oem(d, e, export::now())
             }
             PathPurpose::Picture => {
                 self.screenshot_to = Some(p.to_path_buf());

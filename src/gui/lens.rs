@@ -3,8 +3,6 @@
 //! periapsis changes the altitude, dragging on the aim dial turns the B-plane aim; the figures and
 //! the Sun view follow on the same frame, and a drag is one undo step.
 
-use std::f64::consts::PI;
-
 use eframe::egui::{
     self, Align2, Color32, FontId, Pos2, RichText, Sense, Shape, Stroke, pos2, vec2,
 };
@@ -460,6 +458,13 @@ impl TourwrightApp {
                     "|v∞ out − v∞ in|: what the planet gave",
                     format!("{} km/s", fmt(sw.planet_dv_km_s, 3)),
                 );
+                if let Some((d, t)) = sw.closest_approach {
+                    row(
+                        "closest approach",
+                        "to the next body on the ballistic leg after a shaped swing-by",
+                        format!("{} km on {}", fmt(d, 0), t.to_date_utc()),
+                    );
+                }
             });
         if sw.altitude_km < sw.min_altitude_km - 1e-3 {
             ui.label(
@@ -467,6 +472,5 @@ impl TourwrightApp {
                     .color(style::error_color(dark)),
             );
         }
-        let _ = PI;
     }
 }

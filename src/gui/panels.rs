@@ -1,6 +1,6 @@
 //! The tour panel (stops, legs, arrival, spacecraft, launch vehicle) and the ledger.
 
-use eframe::egui::{self, Color32, DragValue, RichText};
+use eframe::egui::{self, DragValue, RichText};
 
 use crate::astro::bodies::Planet;
 use crate::astro::ephemeris::mean_element_range;
@@ -30,7 +30,6 @@ impl TourwrightApp {
 
     /// The left panel.
     pub fn tour_panel(&mut self, ui: &mut egui::Ui) {
-        let dark = self.settings.dark;
         ui.heading("Tour");
         let mut name = self.doc.design.name.clone();
         ui.horizontal(|ui| {
@@ -142,7 +141,6 @@ impl TourwrightApp {
                 self.doc.edit_live(|d| d.notes = notes.clone());
             }
         });
-        let _ = dark;
     }
 
     fn stop_action(&mut self, k: usize, what: &str) {
@@ -780,7 +778,6 @@ impl TourwrightApp {
             ui.ctx().copy_text(t);
             self.status = Some(("ledger copied to the clipboard".into(), false));
         }
-        let _ = Color32::WHITE;
     }
 
     /// The ledger as tab-separated text.

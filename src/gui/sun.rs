@@ -1,9 +1,7 @@
 //! Sun view: heliocentric top view (ecliptic J2000, x right, y up) with planet orbits, the
 //! tour's arcs coloured by leg, stop symbols, a scale in AU, hover read-outs and a time slider.
 
-use eframe::egui::{
-    self, Align2, Color32, FontId, Pos2, Rect, Sense, Shape, Stroke, Vec2, pos2, vec2,
-};
+use eframe::egui::{self, Align2, Color32, FontId, Pos2, Sense, Shape, Stroke, Vec2, pos2, vec2};
 
 use crate::astro::bodies::Planet;
 use crate::astro::constants::AU_KM;
@@ -174,10 +172,9 @@ impl TourwrightApp {
         };
         let painter = painter.with_clip_rect(rect);
         // Orbits.
-        for (name, pts) in &orbits {
+        for (_, pts) in &orbits {
             let line: Vec<Pos2> = pts.iter().map(|p| to_screen(p[0], p[1])).collect();
             painter.add(Shape::line(line, Stroke::new(1.0, style::faint(dark))));
-            let _ = name;
         }
         // Sun.
         painter.circle_filled(to_screen(0.0, 0.0), 6.0, style::SUN);
@@ -331,7 +328,6 @@ impl TourwrightApp {
                 ui.label(format!("heliocentric speed {v:.2} km/s"));
             });
         }
-        let _ = Rect::NOTHING;
     }
 
     /// Spacecraft position (AU) at `t`, interpolated from the samples.

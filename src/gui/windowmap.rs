@@ -508,11 +508,8 @@ impl TourwrightApp {
         let p2 = painter.with_clip_rect(plot);
         if let Some((tex, ..)) = &self.window.texture {
             // The texture spans cell centres 0..n-1 over half a cell beyond.
-            let hx = 0.5 / (nx - 1) as f32;
-            let hy = 0.5 / (ny - 1) as f32;
             let a = to_screen(-0.5, -0.5);
             let b = to_screen((nx - 1) as f32 + 0.5, (ny - 1) as f32 + 0.5);
-            let _ = (hx, hy);
             p2.image(
                 tex.id(),
                 Rect::from_two_pos(a, b),
@@ -538,13 +535,23 @@ impl TourwrightApp {
             let mut start = 0;
             while start < segs.len() {
                 let lv = segs[start].0;
-                let end = segs[start..].iter().position(|s| s.0 != lv).map_or(segs.len(), |n| start + n);
+                let end = segs[start..]
+                    .iter()
+                    .position(|s| s.0 != lv)
+                    .map_or(segs.len(), |n| start + n);
                 let mid = (start + end) / 2;
-                let order = (0..end - start).map(|k| if k % 2 == 0 { mid + k / 2 } else { mid.saturating_sub(k / 2 + 1) });
+                let order = (0..end - start).map(|k| {
+                    if k % 2 == 0 {
+                        mid + k / 2
+                    } else {
+                        mid.saturating_sub(k / 2 + 1)
+                    }
+                });
                 for idx in order.filter(|i| (start..end).contains(i)) {
                     let s = segs[idx].1;
                     let a = to_screen(s[0], s[1]);
-                    if plot.shrink(16.0).contains(a) && best.iter().all(|b| b.2.distance(a) > 40.0) {
+                    if plot.shrink(16.0).contains(a) && best.iter().all(|b| b.2.distance(a) > 40.0)
+                    {
                         best.push((lv, 0.0, a));
                         break;
                     }

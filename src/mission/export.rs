@@ -282,3 +282,17 @@ pub fn read_oem(text: &str) -> Result<(KeyValues, Vec<OemSegment>), String> {
     }
     Ok((header, segs))
 }
+
+/// The current time as an epoch (for file headers).
+pub fn now() -> Epoch {
+    let s = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .map(|d| d.as_secs_f64())
+        .unwrap_or(0.0);
+    // Unix time counts UTC days of 86 400 s from 1970-01-01 (MJD 40587).
+    let days = s / 86_400.0;
+    let mjd = 40_587.0 + days;
+    let (y, m, d) = crate::astro::time::calendar_from_mjd(mjd.floor() as i32);
+    let sec = (mjd - mjd.floor()) * 86_400.0;
+    Epoch::from_utc(y, m, d, 0, 0, 0.0).plus_days(sec / 86_400.0)
+}
