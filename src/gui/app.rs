@@ -223,6 +223,7 @@ pub struct TourwrightApp {
     /// Picture-export result reported by the screenshot callback.
     pub shot_result: Arc<Mutex<Option<String>>>,
     theme_applied: Option<bool>,
+    last_title: String,
 }
 
 impl TourwrightApp {
@@ -256,6 +257,7 @@ impl TourwrightApp {
             screenshot_to: None,
             shot_result: Arc::new(Mutex::new(None)),
             theme_applied: None,
+            last_title: String::new(),
         };
         app.select_first_swingby();
         app.refresh();
@@ -614,7 +616,12 @@ impl TourwrightApp {
             self.doc.commit_gesture();
         }
         self.handle_close(&ctx);
-        ctx.send_viewport_cmd(egui::ViewportCommand::Title(self.title()));
+        // Only on change: a viewport command every frame would keep the loop repainting.
+        let title = self.title();
+        if self.last_title != title {
+            ctx.send_viewport_cmd(egui::ViewportCommand::Title(title.clone()));
+            self.last_title = title;
+        }
         if let Some(msg) = self.shot_result.lock().ok().and_then(|mut g| g.take()) {
             self.status = Some((msg, false));
         }
