@@ -33,8 +33,12 @@ impl TourwrightApp {
         ui.heading("Tour");
         let mut name = self.doc.design.name.clone();
         ui.horizontal(|ui| {
-            ui.label("Name");
-            if ui.text_edit_singleline(&mut name).changed() {
+            let lab = ui.label("Name");
+            if ui
+                .text_edit_singleline(&mut name)
+                .labelled_by(lab.id)
+                .changed()
+            {
                 self.doc.edit_live(|d| d.name = name.clone());
             }
         });
@@ -72,7 +76,7 @@ impl TourwrightApp {
                     }
                     // Body.
                     ui.horizontal(|ui| {
-                        ui.label("Body");
+                        let lab = ui.label("Body");
                         let mut body = stop.body.clone();
                         egui::ComboBox::from_id_salt("body")
                             .selected_text(body.clone())
@@ -80,7 +84,9 @@ impl TourwrightApp {
                                 for nm in &names {
                                     ui.selectable_value(&mut body, nm.clone(), nm);
                                 }
-                            });
+                            })
+                            .response
+                            .labelled_by(lab.id);
                         if body != stop.body {
                             self.doc.edit(|d| d.stops[k].body = body.clone());
                         }
@@ -137,7 +143,12 @@ impl TourwrightApp {
         egui::CollapsingHeader::new("Launch vehicle").show(ui, |ui| self.vehicle_rows(ui));
         egui::CollapsingHeader::new("Notes").show(ui, |ui| {
             let mut notes = self.doc.design.notes.clone();
-            if ui.text_edit_multiline(&mut notes).changed() {
+            let lab = ui.label("Design notes");
+            if ui
+                .text_edit_multiline(&mut notes)
+                .labelled_by(lab.id)
+                .changed()
+            {
                 self.doc.edit_live(|d| d.notes = notes.clone());
             }
         });
@@ -195,17 +206,20 @@ impl TourwrightApp {
 
     fn epoch_row(&mut self, ui: &mut egui::Ui, k: usize, epoch: Epoch) {
         ui.horizontal(|ui| {
-            ui.label("Date")
+            let lab = ui
+                .label("Date")
                 .on_hover_text("UTC calendar date; also accepts …T12:00:00 and a TDB suffix");
             let mut text = match &self.epoch_edit {
                 Some((j, t)) if *j == k => t.clone(),
                 _ => epoch.to_date_utc(),
             };
-            let r = ui.add(
-                egui::TextEdit::singleline(&mut text)
-                    .desired_width(150.0)
-                    .id_salt("epoch"),
-            );
+            let r = ui
+                .add(
+                    egui::TextEdit::singleline(&mut text)
+                        .desired_width(150.0)
+                        .id_salt("epoch"),
+                )
+                .labelled_by(lab.id);
             if r.changed() {
                 self.epoch_edit = Some((k, text.clone()));
             }
@@ -268,8 +282,9 @@ impl TourwrightApp {
         ui.horizontal(|ui| {
             let mut custom = stop.swingby.min_altitude_km.is_some();
             let def = data.map(|d| d.min_altitude_km).unwrap_or(0.0);
-            if ui
-                .checkbox(&mut custom, "Min altitude")
+            let r_box = ui.checkbox(&mut custom, "Min altitude");
+            if r_box
+                .clone()
                 .on_hover_text(
                     "Lowest periapsis altitude allowed; the body's default when unticked",
                 )
@@ -280,13 +295,15 @@ impl TourwrightApp {
                 });
             }
             let mut v = stop.swingby.min_altitude_km.unwrap_or(def);
-            let r = ui.add_enabled(
-                custom,
-                DragValue::new(&mut v)
-                    .speed(10.0)
-                    .range(-1.0e5..=1.0e7)
-                    .suffix(" km"),
-            );
+            let r = ui
+                .add_enabled(
+                    custom,
+                    DragValue::new(&mut v)
+                        .speed(10.0)
+                        .range(-1.0e5..=1.0e7)
+                        .suffix(" km"),
+                )
+                .labelled_by(r_box.id);
             if r.changed() {
                 self.doc
                     .edit_live(|d| d.stops[k].swingby.min_altitude_km = Some(v));
@@ -308,11 +325,17 @@ impl TourwrightApp {
         } = stop.swingby.mode
         {
             ui.horizontal(|ui| {
-                ui.label("Altitude");
                 let speed = altitude_km.abs().max(100.0) * 0.005;
-                let r1 = ui.add(DragValue::new(&mut altitude_km).speed(speed).suffix(" km"));
-                ui.label("Aim");
-                let r2 = ui.add(DragValue::new(&mut aim_deg).speed(0.2).suffix("°"));
+                let r1 = style::labelled(
+                    ui,
+                    "Altitude",
+                    DragValue::new(&mut altitude_km).speed(speed).suffix(" km"),
+                );
+                let r2 = style::labelled(
+                    ui,
+                    "Aim",
+                    DragValue::new(&mut aim_deg).speed(0.2).suffix("°"),
+                );
                 if r1.changed() || r2.changed() {
                     self.doc.edit_live(|d| {
                         d.stops[k].swingby.mode = SwingbyMode::Shaped {
@@ -387,17 +410,20 @@ impl TourwrightApp {
         let ballistic = self.eval.legs.get(k).is_some_and(|l| l.ballistic);
         ui.horizontal(|ui| {
             ui.label(RichText::new("|").color(color).strong());
-            ui.label(RichText::new(format!("leg {}: {:.0} d", k + 1, tof)).color(color));
+            let leg_lab =
+                ui.label(RichText::new(format!("leg {}: {:.0} d", k + 1, tof)).color(color));
             if ballistic {
                 ui.label("ballistic");
                 return;
             }
             let mut revs = leg.revolutions;
-            let r = ui.add(
-                DragValue::new(&mut revs)
-                    .range(0..=crate::astro::lambert::MAX_REVS as u32)
-                    .prefix("revs "),
-            );
+            let r = ui
+                .add(
+                    DragValue::new(&mut revs)
+                        .range(0..=crate::astro::lambert::MAX_REVS as u32)
+                        .prefix("revs "),
+                )
+                .labelled_by(leg_lab.id);
             let mut branch = leg.branch;
             if revs > 0 {
                 egui::ComboBox::from_id_salt(("branch", k))
@@ -414,7 +440,9 @@ impl TourwrightApp {
                             crate::astro::lambert::Branch::Right,
                             "Right",
                         );
-                    });
+                    })
+                    .response
+                    .labelled_by(leg_lab.id);
             }
             let mut retro = leg.direction == crate::astro::lambert::Direction::Retrograde;
             let r3 = ui
@@ -477,16 +505,18 @@ impl TourwrightApp {
         } = new_goal
         {
             ui.horizontal(|ui| {
-                ui.label("r_p");
                 let speed = periapsis_radius_km * 0.002;
-                let a = ui.add(
+                let a = style::labelled(
+                    ui,
+                    "r_p",
                     DragValue::new(&mut periapsis_radius_km)
                         .speed(speed)
                         .range(1.0..=1e9)
                         .suffix(" km"),
                 );
-                ui.label("e");
-                let b = ui.add(
+                let b = style::labelled(
+                    ui,
+                    "e",
                     DragValue::new(&mut eccentricity)
                         .speed(0.002)
                         .range(0.0..=0.999),
@@ -515,8 +545,11 @@ impl TourwrightApp {
                 ui.horizontal(|ui| {
                     let mut on = v.is_some();
                     let mut x = v.unwrap_or(def);
-                    let c = ui.checkbox(&mut on, label).changed();
-                    let r = ui.add_enabled(on, DragValue::new(&mut x).speed(0.1).suffix(unit));
+                    let cb = ui.checkbox(&mut on, label);
+                    let c = cb.changed();
+                    let r = ui
+                        .add_enabled(on, DragValue::new(&mut x).speed(0.1).suffix(unit))
+                        .labelled_by(cb.id);
                     if c {
                         self.doc.edit(|d| set(d, on.then_some(x)));
                     } else if r.changed() {
@@ -539,10 +572,13 @@ impl TourwrightApp {
         let mut sc = self.doc.design.spacecraft.clone();
         let mut changed = false;
         egui::Grid::new("sc").num_columns(2).show(ui, |ui| {
-            ui.label("Name");
-            changed |= ui.text_edit_singleline(&mut sc.name).changed();
+            let lab = ui.label("Name");
+            changed |= ui
+                .text_edit_singleline(&mut sc.name)
+                .labelled_by(lab.id)
+                .changed();
             ui.end_row();
-            ui.label("Dry mass");
+            let lab = ui.label("Dry mass");
             changed |= ui
                 .add(
                     DragValue::new(&mut sc.dry_mass_kg)
@@ -550,9 +586,10 @@ impl TourwrightApp {
                         .range(0.0..=1e6)
                         .suffix(" kg"),
                 )
+                .labelled_by(lab.id)
                 .changed();
             ui.end_row();
-            ui.label("Propellant");
+            let lab = ui.label("Propellant");
             changed |= ui
                 .add(
                     DragValue::new(&mut sc.propellant_kg)
@@ -560,9 +597,11 @@ impl TourwrightApp {
                         .range(0.0..=1e6)
                         .suffix(" kg"),
                 )
+                .labelled_by(lab.id)
                 .changed();
             ui.end_row();
-            ui.label("Isp")
+            let lab = ui
+                .label("Isp")
                 .on_hover_text("Specific impulse of the main engine");
             changed |= ui
                 .add(
@@ -571,6 +610,7 @@ impl TourwrightApp {
                         .range(1.0..=1e5)
                         .suffix(" s"),
                 )
+                .labelled_by(lab.id)
                 .changed();
             ui.end_row();
         });
@@ -607,19 +647,25 @@ impl TourwrightApp {
             return;
         };
         let mut changed = false;
-        changed |= ui.text_edit_singleline(&mut lv.name).changed();
+        let lab = ui.label("Vehicle");
+        changed |= ui
+            .text_edit_singleline(&mut lv.name)
+            .labelled_by(lab.id)
+            .changed();
         ui.label(RichText::new(&lv.note).weak());
         let mut remove = None;
         egui::Grid::new("lv").num_columns(3).show(ui, |ui| {
-            ui.label("C3 (km²/s²)");
-            ui.label("mass (kg)");
+            let c3_lab = ui.label("C3 (km²/s²)");
+            let m_lab = ui.label("mass (kg)");
             ui.end_row();
             for (i, p) in lv.performance.iter_mut().enumerate() {
                 changed |= ui
                     .add(DragValue::new(&mut p.c3_km2_s2).speed(0.2))
+                    .labelled_by(c3_lab.id)
                     .changed();
                 changed |= ui
                     .add(DragValue::new(&mut p.mass_kg).speed(10.0).range(0.0..=1e6))
+                    .labelled_by(m_lab.id)
                     .changed();
                 if ui.small_button("x").clicked() {
                     remove = Some(i);

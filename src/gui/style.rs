@@ -130,3 +130,13 @@ pub fn ramp(t: f32) -> Color32 {
     }
     Color32::from_rgb(0xA8, 0x3A, 0x2A)
 }
+
+/// Add a widget after a visible label that also names it for assistive technology (and tests).
+pub fn labelled(
+    ui: &mut eframe::egui::Ui,
+    label: &str,
+    w: impl eframe::egui::Widget,
+) -> eframe::egui::Response {
+    let l = ui.label(label);
+    ui.add(w).labelled_by(l.id)
+}

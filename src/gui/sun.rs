@@ -102,11 +102,11 @@ impl TourwrightApp {
             .unwrap_or_default();
         // Time slider row.
         ui.horizontal(|ui| {
-            ui.label("Time");
             let mut days = self.time_frac * tof_days;
             let r = ui.add(
                 egui::Slider::new(&mut days, 0.0..=tof_days.max(1.0))
-                    .suffix(" d after launch")
+                    .suffix(" d")
+                    .text("after launch")
                     .show_value(true),
             );
             if r.changed() && tof_days > 0.0 {
