@@ -15,32 +15,22 @@ use tourwright::astro::{State, Vec3};
 use tourwright::mission::evaluate::{EvalOptions, Evaluation, evaluate_into};
 use tourwright::mission::{MissionDesign, files};
 use tourwright::search::job::Progress;
+use tourwright::search::optimize::Rng;
 use tourwright::search::optimize::{self, OptimizeOptions, Problem};
 use tourwright::search::window::{self, SecondAxis, WindowSpec};
 
-struct Rng(u64);
-impl Rng {
-    fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    }
-}
-
 fn geometries(n: usize) -> Vec<(Vec3, Vec3, f64)> {
-    let mut r = Rng(42);
+    let mut r = Rng::new(42);
     (0..n)
         .map(|_| {
-            let a = r.next() * std::f64::consts::TAU;
-            let b = a + r.next() * std::f64::consts::TAU;
-            let r1 = (0.4 + 5.0 * r.next()) * AU_KM;
-            let r2 = (0.4 + 5.0 * r.next()) * AU_KM;
+            let a = r.uniform() * std::f64::consts::TAU;
+            let b = a + r.uniform() * std::f64::consts::TAU;
+            let r1 = (0.4 + 5.0 * r.uniform()) * AU_KM;
+            let r2 = (0.4 + 5.0 * r.uniform()) * AU_KM;
             (
-                Vec3::new(r1 * a.cos(), r1 * a.sin(), 0.01 * r1 * (r.next() - 0.5)),
-                Vec3::new(r2 * b.cos(), r2 * b.sin(), 0.01 * r2 * (r.next() - 0.5)),
-                (30.0 + 1500.0 * r.next()) * 86_400.0,
+                Vec3::new(r1 * a.cos(), r1 * a.sin(), 0.01 * r1 * (r.uniform() - 0.5)),
+                Vec3::new(r2 * b.cos(), r2 * b.sin(), 0.01 * r2 * (r.uniform() - 0.5)),
+                (30.0 + 1500.0 * r.uniform()) * 86_400.0,
             )
         })
         .collect()

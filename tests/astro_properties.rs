@@ -6,21 +6,7 @@ use tourwright::astro::constants::{AU_KM, MU_SUN};
 use tourwright::astro::kepler::{self, Elements};
 use tourwright::astro::lambert::{self, Direction};
 use tourwright::astro::{State, Vec3};
-
-/// SplitMix64: a tiny seeded generator so that the large sweep below is reproducible.
-struct Rng(u64);
-impl Rng {
-    fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    }
-    fn range(&mut self, a: f64, b: f64) -> f64 {
-        a + (b - a) * self.next()
-    }
-}
+use tourwright::search::optimize::Rng;
 
 fn point(rng: &mut Rng, r: f64, angle: f64) -> Vec3 {
     let z = rng.range(-0.1, 0.1) * r;
@@ -33,7 +19,7 @@ fn point(rng: &mut Rng, r: f64, angle: f64) -> Vec3 {
 /// Lambert solution propagated over its TOF lands on r2 within a relative error of 1e-9.
 #[test]
 fn lambert_solutions_land_on_r2() {
-    let mut rng = Rng(0x7011_2026);
+    let mut rng = Rng::new(0x7011_2026);
     let (mut solved, mut hyperbolic, mut multi, mut grazing) = (0usize, 0usize, 0usize, 0usize);
     for k in 0..100_000 {
         let r1n = rng.range(0.3, 40.0) * AU_KM;

@@ -21,14 +21,6 @@ pub struct LensState {
     pub frozen_km_per_pt: Option<f64>,
 }
 
-fn fmt(x: f64, p: usize) -> String {
-    if x.is_finite() && x.abs() < 1e15 {
-        format!("{x:.p$}")
-    } else {
-        "—".into()
-    }
-}
-
 impl TourwrightApp {
     /// The lens view.
     pub fn lens_view(&mut self, ui: &mut egui::Ui) {
@@ -77,15 +69,7 @@ impl TourwrightApp {
             let canvas = vec2((avail.x - side_w - 12.0).max(200.0), avail.y.max(200.0));
             let (resp, painter) = ui.allocate_painter(canvas, Sense::click_and_drag());
             let rect = resp.rect;
-            painter.rect_filled(
-                rect,
-                4.0,
-                if dark {
-                    Color32::from_rgb(14, 17, 24)
-                } else {
-                    Color32::from_rgb(248, 247, 242)
-                },
-            );
+            painter.rect_filled(rect, 4.0, style::canvas(dark));
             let painter = painter.with_clip_rect(rect);
             let rp = sw.rp_km;
             let r_body = data.radius_km.max(1.0);
@@ -204,7 +188,7 @@ impl TourwrightApp {
             painter.text(
                 pp + vec2(12.0, 0.0),
                 Align2::LEFT_CENTER,
-                format!("periapsis {} km alt", fmt(sw.altitude_km, 0)),
+                format!("periapsis {} km alt", style::fixed(sw.altitude_km, 0)),
                 FontId::proportional(13.0),
                 text_c,
             );
@@ -241,7 +225,7 @@ impl TourwrightApp {
                 format!(
                     "{} · dashed ring: minimum altitude {} km",
                     body_name,
-                    fmt(sw.min_altitude_km, 0)
+                    style::fixed(sw.min_altitude_km, 0)
                 ),
                 FontId::proportional(12.0),
                 text_c,
@@ -391,78 +375,86 @@ impl TourwrightApp {
                     "hyperbolic excess speed relative to the planet",
                     format!(
                         "{} / {} km/s",
-                        fmt(st.vinf_in.norm(), 3),
-                        fmt(st.vinf_out.norm(), 3)
+                        style::fixed(st.vinf_in.norm(), 3),
+                        style::fixed(st.vinf_out.norm(), 3)
                     ),
                 );
                 row(
                     "eccentricity",
                     "e = 1 + r_p v∞²/μ (in / out)",
-                    format!("{} / {}", fmt(sw.e_in, 4), fmt(sw.e_out, 4)),
+                    format!(
+                        "{} / {}",
+                        style::fixed(sw.e_in, 4),
+                        style::fixed(sw.e_out, 4)
+                    ),
                 );
                 row(
                     "periapsis radius",
                     "from the planet's centre",
-                    format!("{} km", fmt(sw.rp_km, 0)),
+                    format!("{} km", style::fixed(sw.rp_km, 0)),
                 );
                 row(
                     "altitude (min)",
                     "above the equatorial radius",
                     format!(
                         "{} ({}) km",
-                        fmt(sw.altitude_km, 0),
-                        fmt(sw.min_altitude_km, 0)
+                        style::fixed(sw.altitude_km, 0),
+                        style::fixed(sw.min_altitude_km, 0)
                     ),
                 );
                 row(
                     "turn angle",
                     "angle between v∞ in and v∞ out",
-                    format!("{}°", fmt(sw.turn_rad.to_degrees(), 2)),
+                    format!("{}°", style::fixed(sw.turn_rad.to_degrees(), 2)),
                 );
                 row(
                     "turn available",
                     "largest unpowered turn at the minimum altitude",
-                    format!("{}°", fmt(sw.turn_available_rad.to_degrees(), 2)),
+                    format!("{}°", style::fixed(sw.turn_available_rad.to_degrees(), 2)),
                 );
                 row(
                     "powered Δv",
                     "impulse at periapsis joining two v∞ magnitudes",
-                    format!("{} km/s", fmt(sw.powered_dv_km_s, 3)),
+                    format!("{} km/s", style::fixed(sw.powered_dv_km_s, 3)),
                 );
                 row(
                     "B·T / B·R",
                     "B-plane coordinates (T = S × ecliptic north)",
-                    format!("{} / {} km", fmt(sw.bplane.b_t, 0), fmt(sw.bplane.b_r, 0)),
+                    format!(
+                        "{} / {} km",
+                        style::fixed(sw.bplane.b_t, 0),
+                        style::fixed(sw.bplane.b_r, 0)
+                    ),
                 );
                 row(
                     "|B|",
                     "impact parameter",
-                    format!("{} km", fmt(sw.bplane.b, 0)),
+                    format!("{} km", style::fixed(sw.bplane.b, 0)),
                 );
                 row(
                     "speed before to after",
                     "heliocentric",
                     format!(
                         "{} to {} km/s",
-                        fmt(st.speed_before, 3),
-                        fmt(st.speed_after, 3)
+                        style::fixed(st.speed_before, 3),
+                        style::fixed(st.speed_after, 3)
                     ),
                 );
                 row(
                     "energy gain",
                     "change of heliocentric specific energy",
-                    format!("{} km²/s²", fmt(st.gain(), 2)),
+                    format!("{} km²/s²", style::fixed(st.gain(), 2)),
                 );
                 row(
                     "planet's Δv",
                     "|v∞ out − v∞ in|: what the planet gave",
-                    format!("{} km/s", fmt(sw.planet_dv_km_s, 3)),
+                    format!("{} km/s", style::fixed(sw.planet_dv_km_s, 3)),
                 );
                 if let Some((d, t)) = sw.closest_approach {
                     row(
                         "closest approach",
                         "to the next body on the ballistic leg after a shaped swing-by",
-                        format!("{} km on {}", fmt(d, 0), t.to_date_utc()),
+                        format!("{} km on {}", style::fixed(d, 0), t.to_date_utc()),
                     );
                 }
             });

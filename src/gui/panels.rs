@@ -12,14 +12,6 @@ use crate::mission::retarget;
 use super::app::TourwrightApp;
 use super::style;
 
-fn fmt(x: f64, p: usize) -> String {
-    if x.is_finite() && x.abs() < 1e15 {
-        format!("{x:.p$}")
-    } else {
-        "—".into()
-    }
-}
-
 impl TourwrightApp {
     /// Body names for pickers: catalogue then user bodies.
     fn body_names(&self) -> Vec<String> {
@@ -48,13 +40,7 @@ impl TourwrightApp {
         let names = self.body_names();
         let mut action: Option<(usize, &'static str)> = None;
         for k in 0..n {
-            let kind = if k == 0 {
-                StopKind::Launch
-            } else if k + 1 == n {
-                StopKind::Arrival
-            } else {
-                StopKind::SwingBy
-            };
+            let kind = StopKind::of(k, n);
             let stop = self.doc.design.stops[k].clone();
             let selected = self.selected == k;
             ui.push_id(("stop", k), |ui| {
@@ -382,7 +368,7 @@ impl TourwrightApp {
         ui.horizontal_wrapped(|ui| {
             if let Some(m) = miss {
                 let soi = self.doc.design.resolve(&self.doc.design.stops[k + 1].body).map(|b| self.doc.design.body_data(&b).soi_km).unwrap_or(1e5);
-                let txt = format!("misses the next body by {} km", fmt(m, 0));
+                let txt = format!("misses the next body by {} km", style::fixed(m, 0));
                 if m > soi.max(1e4) {
                     ui.label(RichText::new(format!("! {txt}")).color(style::warn_color(self.settings.dark)));
                 } else {
@@ -726,19 +712,22 @@ impl TourwrightApp {
             let l = &e.ledger;
             ui.label(format!(
                 "Δv total {} km/s · propellant {} of {} kg (margin {} kg) · final {} kg",
-                fmt(l.total_dv_km_s, 3),
-                fmt(l.propellant_needed_kg, 0),
-                fmt(d.spacecraft.propellant_kg, 0),
-                fmt(l.propellant_margin_kg, 0),
-                fmt(l.final_mass_kg, 0)
+                style::fixed(l.total_dv_km_s, 3),
+                style::fixed(l.propellant_needed_kg, 0),
+                style::fixed(d.spacecraft.propellant_kg, 0),
+                style::fixed(l.propellant_margin_kg, 0),
+                style::fixed(l.final_mass_kg, 0)
             ));
             if let Some(m) = l.delivered_mass_kg {
-                ui.label(format!("· delivered with launch vehicle {} kg", fmt(m, 0)));
+                ui.label(format!(
+                    "· delivered with launch vehicle {} kg",
+                    style::fixed(m, 0)
+                ));
             }
             ui.label(format!(
                 "· C3 {} km²/s² · TOF {} d",
-                fmt(e.launch.c3, 2),
-                fmt(e.total_tof_days(), 0)
+                style::fixed(e.launch.c3, 2),
+                style::fixed(e.total_tof_days(), 0)
             ));
         });
         egui::ScrollArea::both().show(ui, |ui| {
@@ -778,19 +767,19 @@ impl TourwrightApp {
                         );
                         ui.label(s.epoch.to_date_utc());
                         ui.label(if k > 0 {
-                            fmt(s.vinf_in.norm(), 3)
+                            style::fixed(s.vinf_in.norm(), 3)
                         } else {
                             "—".into()
                         });
                         ui.label(if k + 1 < e.stops.len() {
-                            fmt(s.vinf_out.norm(), 3)
+                            style::fixed(s.vinf_out.norm(), 3)
                         } else {
                             "—".into()
                         });
                         let alt = sw.map(|w| (w.altitude_km, w.min_altitude_km));
                         match alt {
                             Some((a, m)) if is_sw => {
-                                let t = RichText::new(fmt(a, 0));
+                                let t = RichText::new(style::fixed(a, 0));
                                 ui.label(if a < m - 1e-3 {
                                     t.color(style::error_color(dark))
                                 } else {
@@ -803,16 +792,16 @@ impl TourwrightApp {
                         }
                         ui.label(
                             sw.filter(|_| is_sw)
-                                .map(|w| fmt(w.turn_rad.to_degrees(), 1))
+                                .map(|w| style::fixed(w.turn_rad.to_degrees(), 1))
                                 .unwrap_or("—".into()),
                         );
-                        ui.label(fmt(s.dv_km_s, 3));
+                        ui.label(style::fixed(s.dv_km_s, 3));
                         ui.label(if is_sw {
-                            fmt(s.gain(), 2)
+                            style::fixed(s.gain(), 2)
                         } else {
                             "—".into()
                         });
-                        ui.label(fmt(s.mass_after_kg, 0));
+                        ui.label(style::fixed(s.mass_after_kg, 0));
                         ui.end_row();
                     }
                 });

@@ -37,6 +37,24 @@ pub fn body_color(name: &str) -> Color32 {
     }
 }
 
+/// Background of the drawing canvases (Sun view, lens).
+pub fn canvas(dark: bool) -> Color32 {
+    if dark {
+        Color32::from_rgb(14, 17, 24)
+    } else {
+        Color32::from_rgb(248, 247, 242)
+    }
+}
+
+/// A number with `p` decimals, or an em dash when it is not finite or absurdly large.
+pub fn fixed(x: f64, p: usize) -> String {
+    if x.is_finite() && x.abs() < 1e15 {
+        format!("{x:.p$}")
+    } else {
+        "—".into()
+    }
+}
+
 /// Sun colour.
 pub const SUN: Color32 = Color32::from_rgb(0xF2, 0xB1, 0x34);
 

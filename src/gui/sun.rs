@@ -126,15 +126,7 @@ impl TourwrightApp {
         let size = ui.available_size();
         let (resp, painter) = ui.allocate_painter(size, Sense::click_and_drag());
         let rect = resp.rect;
-        painter.rect_filled(
-            rect,
-            4.0,
-            if dark {
-                Color32::from_rgb(14, 17, 24)
-            } else {
-                Color32::from_rgb(248, 247, 242)
-            },
-        );
+        painter.rect_filled(rect, 4.0, style::canvas(dark));
         // Fit: the largest orbit drawn or trajectory point.
         let mut r_max: f64 = 1.2;
         for (_, pts) in &orbits {

@@ -29,6 +29,17 @@ pub enum StopKind {
 }
 
 impl StopKind {
+    /// The role of stop `k` in a tour of `n` stops.
+    pub fn of(k: usize, n: usize) -> Self {
+        if k == 0 {
+            StopKind::Launch
+        } else if k + 1 == n {
+            StopKind::Arrival
+        } else {
+            StopKind::SwingBy
+        }
+    }
+
     /// Display name.
     pub fn label(self) -> &'static str {
         match self {
@@ -428,13 +439,7 @@ pub fn evaluate_into(design: &MissionDesign, opts: &EvalOptions, out: &mut Evalu
     // Bodies and their states.
     let mut ok = true;
     for (k, stop) in design.stops.iter().enumerate() {
-        let kind = if k == 0 {
-            StopKind::Launch
-        } else if k + 1 == n {
-            StopKind::Arrival
-        } else {
-            StopKind::SwingBy
-        };
+        let kind = StopKind::of(k, n);
         let mut sr = StopResult {
             kind,
             epoch: stop.epoch,

@@ -47,6 +47,10 @@ impl Rng {
     pub fn uniform(&mut self) -> f64 {
         (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
     }
+    /// Uniform in [a, b).
+    pub fn range(&mut self, a: f64, b: f64) -> f64 {
+        a + (b - a) * self.uniform()
+    }
     /// Uniform integer in [0, n).
     pub fn below(&mut self, n: usize) -> usize {
         ((self.uniform() * n as f64) as usize).min(n - 1)
