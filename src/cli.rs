@@ -38,6 +38,15 @@ pub enum MeasureArg {
     C3,
 }
 
+/// Multi-revolution branches.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum BranchArg {
+    /// Izzo's left branch (smaller x).
+    Left,
+    /// Izzo's right branch (larger x).
+    Right,
+}
+
 /// Objectives for `optimize` and `explore`.
 #[derive(Clone, Copy, Debug, ValueEnum)]
 pub enum ObjectiveArg {
@@ -138,6 +147,9 @@ pub enum Command {
         /// Complete revolutions of the arcs.
         #[arg(long, default_value_t = 0)]
         revs: u32,
+        /// Multi-revolution branch (left: smaller x, right: larger x).
+        #[arg(long, value_enum, default_value = "left")]
+        branch: BranchArg,
         /// Write the grid as CSV.
         #[arg(long)]
         csv: Option<PathBuf>,
@@ -596,6 +608,7 @@ pub fn run(cmd: Command) -> CliResult {
             tof,
             steps,
             revs,
+            branch,
             csv,
         } => {
             let base = match &design {
@@ -658,6 +671,10 @@ pub fn run(cmd: Command) -> CliResult {
                 ny: steps,
                 leg: crate::mission::design::LegOptions {
                     revolutions: revs,
+                    branch: match branch {
+                        BranchArg::Left => crate::astro::lambert::Branch::Left,
+                        BranchArg::Right => crate::astro::lambert::Branch::Right,
+                    },
                     ..Default::default()
                 },
                 goal: base.arrival,

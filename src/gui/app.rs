@@ -980,8 +980,10 @@ impl TourwrightApp {
                     PathPurpose::SaveAs => "Save the design as",
                     _ => "Export to",
                 });
-                ui.label("Type a path (no native file dialog is in use):");
-                let r = ui.add(egui::TextEdit::singleline(&mut text).desired_width(480.0));
+                let lab = ui.label("Type a path (no native file dialog is in use):");
+                let r = ui
+                    .add(egui::TextEdit::singleline(&mut text).desired_width(480.0))
+                    .labelled_by(lab.id);
                 let enter = r.lost_focus() && ui.input(|i| i.key_pressed(Key::Enter));
                 ui.horizontal(|ui| {
                     if ui.button("OK").clicked() || enter {

@@ -79,8 +79,9 @@ impl TourwrightApp {
             for x in [Measure::TotalDv, Measure::DeliveredMass, Measure::C3] {
                 ui.selectable_value(&mut m, x, x.label());
             }
-            ui.label("launch period ±");
-            let r = ui.add(
+            let r = super::style::labelled(
+                ui,
+                "launch period ±",
                 egui::DragValue::new(&mut self.search.direct.window_days)
                     .range(10.0..=1500.0)
                     .suffix(" d"),

@@ -115,13 +115,14 @@ impl TourwrightApp {
                 }
             });
         ui.horizontal(|ui| {
-            ui.add(
+            super::style::labelled(
+                ui,
+                "budget",
                 egui::DragValue::new(&mut self.search.evals)
                     .range(1_000..=20_000_000)
-                    .speed(1000.0)
-                    .prefix("budget "),
+                    .speed(1000.0),
             );
-            ui.add(egui::DragValue::new(&mut self.search.seed).prefix("seed "));
+            super::style::labelled(ui, "seed", egui::DragValue::new(&mut self.search.seed));
         });
         let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Optimize(..)));
         ui.horizontal(|ui| {
@@ -200,14 +201,16 @@ impl TourwrightApp {
         ui.separator();
         ui.label(RichText::new("Sequence explorer").strong());
         ui.horizontal(|ui| {
-            ui.label("from Earth to");
+            let lab = ui.label("from Earth to");
             egui::ComboBox::from_id_salt("target")
                 .selected_text(self.search.target.name())
                 .show_ui(ui, |ui| {
                     for p in Planet::ALL {
                         ui.selectable_value(&mut self.search.target, p, p.name());
                     }
-                });
+                })
+                .response
+                .labelled_by(lab.id);
         });
         ui.horizontal_wrapped(|ui| {
             ui.label("swing-bys at");
@@ -230,31 +233,41 @@ impl TourwrightApp {
             }
         });
         ui.horizontal(|ui| {
-            ui.add(
-                egui::DragValue::new(&mut self.search.max_swingbys)
-                    .range(0..=3)
-                    .prefix("max swing-bys "),
+            super::style::labelled(
+                ui,
+                "max swing-bys",
+                egui::DragValue::new(&mut self.search.max_swingbys).range(0..=3),
             );
-            ui.add(
+            super::style::labelled(
+                ui,
+                "max TOF",
                 egui::DragValue::new(&mut self.search.max_tof_years)
                     .range(0.5..=20.0)
                     .speed(0.1)
-                    .prefix("max TOF ")
                     .suffix(" y"),
             );
         });
         ui.horizontal(|ui| {
-            ui.label("launch");
-            ui.add(egui::TextEdit::singleline(&mut self.search.launch.0).desired_width(85.0));
-            ui.label("..");
-            ui.add(egui::TextEdit::singleline(&mut self.search.launch.1).desired_width(85.0));
+            super::style::labelled(
+                ui,
+                "launch",
+                egui::TextEdit::singleline(&mut self.search.launch.0).desired_width(85.0),
+            );
+            super::style::labelled(
+                ui,
+                "..",
+                egui::TextEdit::singleline(&mut self.search.launch.1).desired_width(85.0),
+            );
         });
-        ui.add(
-            egui::DragValue::new(&mut self.search.evals_per_sequence)
-                .range(1000..=2_000_000)
-                .speed(500.0)
-                .prefix("evaluations per sequence "),
-        );
+        ui.horizontal(|ui| {
+            super::style::labelled(
+                ui,
+                "evaluations per sequence",
+                egui::DragValue::new(&mut self.search.evals_per_sequence)
+                    .range(1000..=2_000_000)
+                    .speed(500.0),
+            );
+        });
         let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Explore(..)));
         if ui
             .add_enabled(!running, egui::Button::new("Explore sequences"))

@@ -41,6 +41,8 @@ pub struct WindowViewState {
     pub steps: usize,
     /// Revolutions.
     pub revs: u32,
+    /// Multi-revolution branch.
+    pub branch: crate::astro::lambert::Branch,
     /// Quantity shown.
     pub quantity: Quantity,
     /// Upper end of the colour scale (None: automatic).
@@ -71,6 +73,7 @@ impl Default for WindowViewState {
             tof: (80.0, 500.0),
             steps: 300,
             revs: 0,
+            branch: Default::default(),
             quantity: Quantity::C3,
             cap: None,
             leg: None,
@@ -105,6 +108,7 @@ impl WindowViewState {
             b.plus_days(half).to_date_utc(),
         );
         self.revs = d.leg(k).revolutions;
+        self.branch = d.leg(k).branch;
         self.leg = Some(k);
         self.map = None;
         self.view = None;
@@ -221,6 +225,7 @@ impl TourwrightApp {
                 ny: w.steps,
                 leg: LegOptions {
                     revolutions: w.revs,
+                    branch: w.branch,
                     ..Default::default()
                 },
                 goal: self.doc.design.arrival,
@@ -250,7 +255,7 @@ impl TourwrightApp {
             .collect();
         let n_legs = self.doc.design.stops.len().saturating_sub(1);
         ui.horizontal_wrapped(|ui| {
-            ui.label("Leg");
+            let leg_lab = ui.label("Leg");
             let mut leg = self.window.leg;
             egui::ComboBox::from_id_salt("wm-leg")
                 .selected_text(leg.map(|k| format!("{}", k + 1)).unwrap_or("free".into()))
@@ -268,7 +273,9 @@ impl TourwrightApp {
                             ),
                         );
                     }
-                });
+                })
+                .response
+                .labelled_by(leg_lab.id);
             if leg != self.window.leg {
                 match leg {
                     Some(k) => self.window.reset_from_design(&self.doc.design, k),
@@ -276,7 +283,7 @@ impl TourwrightApp {
                 }
             }
             for (label, v) in [("from", 0), ("to", 1)] {
-                ui.label(label);
+                let lab = ui.label(label);
                 let cur = if v == 0 {
                     self.window.from.clone()
                 } else {
@@ -289,7 +296,9 @@ impl TourwrightApp {
                         for n in &names {
                             ui.selectable_value(&mut sel, n.clone(), n);
                         }
-                    });
+                    })
+                    .response
+                    .labelled_by(lab.id);
                 if sel != cur {
                     if v == 0 {
                         self.window.from = sel
@@ -301,31 +310,45 @@ impl TourwrightApp {
             }
         });
         ui.horizontal_wrapped(|ui| {
-            ui.label("depart");
-            ui.add(egui::TextEdit::singleline(&mut self.window.depart.0).desired_width(90.0));
-            ui.label("..");
-            ui.add(egui::TextEdit::singleline(&mut self.window.depart.1).desired_width(90.0));
-            ui.checkbox(&mut self.window.use_tof, "TOF axis");
-            if self.window.use_tof {
-                ui.add(egui::DragValue::new(&mut self.window.tof.0).suffix(" d"));
-                ui.label("..");
-                ui.add(egui::DragValue::new(&mut self.window.tof.1).suffix(" d"));
+            let w = &mut self.window;
+            style::labelled(
+                ui,
+                "depart",
+                egui::TextEdit::singleline(&mut w.depart.0).desired_width(90.0),
+            );
+            style::labelled(
+                ui,
+                "..",
+                egui::TextEdit::singleline(&mut w.depart.1).desired_width(90.0),
+            );
+            ui.checkbox(&mut w.use_tof, "TOF axis");
+            if w.use_tof {
+                style::labelled(ui, "TOF", egui::DragValue::new(&mut w.tof.0).suffix(" d"));
+                style::labelled(ui, "..", egui::DragValue::new(&mut w.tof.1).suffix(" d"));
             } else {
-                ui.label("arrive");
-                ui.add(egui::TextEdit::singleline(&mut self.window.arrive.0).desired_width(90.0));
-                ui.label("..");
-                ui.add(egui::TextEdit::singleline(&mut self.window.arrive.1).desired_width(90.0));
+                style::labelled(
+                    ui,
+                    "arrive",
+                    egui::TextEdit::singleline(&mut w.arrive.0).desired_width(90.0),
+                );
+                style::labelled(
+                    ui,
+                    "..",
+                    egui::TextEdit::singleline(&mut w.arrive.1).desired_width(90.0),
+                );
             }
-            ui.add(
-                egui::DragValue::new(&mut self.window.steps)
-                    .range(20..=1000)
-                    .prefix("cells "),
+            style::labelled(
+                ui,
+                "cells",
+                egui::DragValue::new(&mut w.steps).range(20..=1000),
             );
-            ui.add(
-                egui::DragValue::new(&mut self.window.revs)
-                    .range(0..=4)
-                    .prefix("revs "),
-            );
+            style::labelled(ui, "revs", egui::DragValue::new(&mut w.revs).range(0..=4));
+            if w.revs > 0 {
+                use crate::astro::lambert::Branch;
+                ui.selectable_value(&mut w.branch, Branch::Left, "left branch")
+                    .on_hover_text("Izzo's left branch: the smaller x (higher energy)");
+                ui.selectable_value(&mut w.branch, Branch::Right, "right branch");
+            }
             let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Window(_)));
             if ui
                 .add_enabled(!running, egui::Button::new("Compute"))
@@ -395,14 +418,14 @@ impl TourwrightApp {
             .max(lo + 1e-9);
         let mut cap = self.window.cap.unwrap_or(auto_cap);
         ui.horizontal(|ui| {
-            ui.label("colour scale up to");
-            if ui
-                .add(
-                    egui::DragValue::new(&mut cap)
-                        .speed((auto_cap - lo) * 0.01)
-                        .range(lo..=vals[vals.len() - 1]),
-                )
-                .changed()
+            if style::labelled(
+                ui,
+                "colour scale up to",
+                egui::DragValue::new(&mut cap)
+                    .speed((auto_cap - lo) * 0.01)
+                    .range(lo..=vals[vals.len() - 1]),
+            )
+            .changed()
             {
                 self.window.cap = Some(cap);
                 self.window.texture = None;
