@@ -146,11 +146,18 @@ pub fn perifocal_to_inertial(raan: f64, i: f64, argp: f64) -> nalgebra::Matrix3<
 /// Solve Kepler's equation M = E − e sin E for the eccentric anomaly (0 ≤ e < 1).
 /// Newton iteration with a safeguard bracket; converges for every e < 1.
 pub fn eccentric_anomaly(m: f64, e: f64) -> f64 {
-    let m = (m + PI).rem_euclid(TAU) - PI; // reduce to [-π, π)
+    // Reduce to [-π, π) (the common case is already there: skip the division).
+    let m = if (-PI..PI).contains(&m) {
+        m
+    } else {
+        (m + PI).rem_euclid(TAU) - PI
+    };
     if m == 0.0 {
         return 0.0;
     }
-    let mut x = m + e * m.sin();
+    // Second-order starter (Danby 1987, from memory): E0 = M + e sin M (1 + e cos M).
+    let (sm, cm) = m.sin_cos();
+    let mut x = m + e * sm * (1.0 + e * cm);
     let (mut lo, mut hi) = if m > 0.0 { (0.0, PI) } else { (-PI, 0.0) };
     for _ in 0..60 {
         let (s, c) = x.sin_cos();
@@ -168,7 +175,9 @@ pub fn eccentric_anomaly(m: f64, e: f64) -> f64 {
         if !(nx >= lo && nx <= hi) {
             nx = 0.5 * (lo + hi);
         }
-        if (nx - x).abs() < 1e-15 * (1.0 + x.abs()) {
+        // After a Newton step of size Δ the error is about Δ² e sin E / (2 fp): below rounding
+        // once |Δ| < 1e-9 (for e < 0.99), so no further iteration is needed.
+        if (nx - x).abs() < 1e-9 {
             return nx;
         }
         x = nx;
