@@ -564,41 +564,23 @@ impl TourwrightApp {
                 .labelled_by(lab.id)
                 .changed();
             ui.end_row();
-            let lab = ui.label("Dry mass");
-            changed |= ui
-                .add(
-                    DragValue::new(&mut sc.dry_mass_kg)
-                        .speed(5.0)
-                        .range(0.0..=1e6)
-                        .suffix(" kg"),
-                )
-                .labelled_by(lab.id)
-                .changed();
-            ui.end_row();
-            let lab = ui.label("Propellant");
-            changed |= ui
-                .add(
-                    DragValue::new(&mut sc.propellant_kg)
-                        .speed(5.0)
-                        .range(0.0..=1e6)
-                        .suffix(" kg"),
-                )
-                .labelled_by(lab.id)
-                .changed();
-            ui.end_row();
-            let lab = ui
-                .label("Isp")
-                .on_hover_text("Specific impulse of the main engine");
-            changed |= ui
-                .add(
-                    DragValue::new(&mut sc.isp_s)
-                        .speed(1.0)
-                        .range(1.0..=1e5)
-                        .suffix(" s"),
-                )
-                .labelled_by(lab.id)
-                .changed();
-            ui.end_row();
+            let rows: [(&str, &mut f64, f64, f64, &str); 3] = [
+                ("Dry mass", &mut sc.dry_mass_kg, 5.0, 0.0, " kg"),
+                ("Propellant", &mut sc.propellant_kg, 5.0, 0.0, " kg"),
+                ("Isp", &mut sc.isp_s, 1.0, 1.0, " s"),
+            ];
+            for (name, v, speed, min, unit) in rows {
+                let lab = ui.label(name);
+                if name == "Isp" {
+                    lab.clone()
+                        .on_hover_text("Specific impulse of the main engine");
+                }
+                changed |= ui
+                    .add(DragValue::new(v).speed(speed).range(min..=1e6).suffix(unit))
+                    .labelled_by(lab.id)
+                    .changed();
+                ui.end_row();
+            }
         });
         if changed {
             self.doc.edit_live(|d| d.spacecraft = sc.clone());
