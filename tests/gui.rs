@@ -196,3 +196,36 @@ fn every_view_draws_and_frames_keep_coming_while_a_job_runs() {
     }
     assert!(h.state().jobs.is_empty(), "cancel did not stop the job");
 }
+
+#[test]
+fn window_map_click_sets_the_leg_dates_as_one_undo_step() {
+    use tourwright::search::job::Progress;
+    use tourwright::search::window::{self, SecondAxis, WindowSpec};
+    let mut h = harness(1);
+    h.get_by_label("Window map").click();
+    h.run_steps(2);
+    let d = h.state().doc.design.clone();
+    let (a, b) = (d.stops[0].epoch, d.stops[1].epoch);
+    let spec = WindowSpec {
+        from: d.stops[0].body.clone(),
+        to: d.stops[1].body.clone(),
+        depart: (a.plus_days(-20.0), a.plus_days(20.0)),
+        second: SecondAxis::Arrival(b.plus_days(-30.0), b.plus_days(30.0)),
+        nx: 9,
+        ny: 9,
+        leg: Default::default(),
+        goal: d.arrival,
+    };
+    let map = window::compute(&d, &spec, &Progress::new()).unwrap();
+    h.state_mut().window.leg = Some(0);
+    h.state_mut().window_click(&map, 2, 7);
+    h.run_steps(2);
+    let (t0, t1) = map.epochs(2, 7);
+    assert_eq!(h.state().doc.design.stops[0].epoch, t0);
+    assert_eq!(h.state().doc.design.stops[1].epoch, t1);
+    assert!((h.state().eval.launch.c3 - map.cell(2, 7).c3).abs() < 1e-6);
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run_steps(2);
+    assert_eq!(h.state().doc.design.stops[0].epoch, a);
+    assert_eq!(h.state().doc.design.stops[1].epoch, b);
+}

@@ -815,7 +815,8 @@ impl TourwrightApp {
         }
     }
 
-    fn window_click(&mut self, map: &WindowMap, i: usize, j: usize) {
+    /// Set the chosen leg's dates from cell (i, j) of a map (one undo step), if the bodies match.
+    pub fn window_click(&mut self, map: &WindowMap, i: usize, j: usize) {
         let (a, b) = map.epochs(i, j);
         let Some(k) = self.window.leg else {
             self.status = Some((
