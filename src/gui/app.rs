@@ -740,8 +740,7 @@ impl TourwrightApp {
                 GuiJob::Window(mut j) => match j.poll() {
                     JobStatus::Running => keep.push(GuiJob::Window(j)),
                     JobStatus::Done(Some(m)) => {
-                        self.window.map = Some(m);
-                        self.window.view = None;
+                        self.window.set_map(m);
                     }
                     JobStatus::Done(None) => {
                         self.status = Some(("window map cancelled".into(), false))

@@ -122,14 +122,17 @@ impl TourwrightApp {
                 self.sun.pan = Vec2::ZERO;
             }
         });
-        let orbits = self.sun_orbits().clone();
+        self.sun_orbits();
+        // Borrowed out of the cache for this frame (no copy), put back at the end.
+        let cache = self.sun.orbits.take();
+        let orbits: &Orbits = &cache.as_ref().expect("filled above").1;
         let size = ui.available_size();
         let (resp, painter) = ui.allocate_painter(size, Sense::click_and_drag());
         let rect = resp.rect;
         painter.rect_filled(rect, 4.0, style::canvas(dark));
         // Fit: the largest orbit drawn or trajectory point.
         let mut r_max: f64 = 1.2;
-        for (_, pts) in &orbits {
+        for (_, pts) in orbits {
             for p in pts {
                 r_max = r_max.max(p[0].hypot(p[1]));
             }
@@ -164,7 +167,7 @@ impl TourwrightApp {
         };
         let painter = painter.with_clip_rect(rect);
         // Orbits.
-        for (_, pts) in &orbits {
+        for (_, pts) in orbits {
             let line: Vec<Pos2> = pts.iter().map(|p| to_screen(p[0], p[1])).collect();
             painter.add(Shape::line(line, Stroke::new(1.0, style::faint(dark))));
         }
@@ -320,6 +323,7 @@ impl TourwrightApp {
                 ui.label(format!("heliocentric speed {v:.2} km/s"));
             });
         }
+        self.sun.orbits = cache;
     }
 
     /// Spacecraft position (AU) at `t`, interpolated from the samples.

@@ -50,7 +50,7 @@ pub struct WindowViewState {
     /// The design leg the map stands for (clicks set its dates).
     pub leg: Option<usize>,
     /// The computed map.
-    pub map: Option<WindowMap>,
+    pub map: Option<std::sync::Arc<WindowMap>>,
     /// Visible part of the map in normalised coordinates (None: all).
     pub view: Option<Rect>,
     /// Form error.
@@ -60,6 +60,7 @@ pub struct WindowViewState {
     texture: Option<(TextureHandle, Quantity, u64)>,
     contours: Option<(Quantity, u64, LevelSegments)>,
     map_id: u64,
+    stats: Option<(Quantity, u64, f64, f64, f64)>,
 }
 
 impl Default for WindowViewState {
@@ -84,11 +85,19 @@ impl Default for WindowViewState {
             texture: None,
             contours: None,
             map_id: 0,
+            stats: None,
         }
     }
 }
 
 impl WindowViewState {
+    /// Show a newly computed map.
+    pub fn set_map(&mut self, m: WindowMap) {
+        self.map = Some(std::sync::Arc::new(m));
+        self.map_id += 1;
+        self.view = None;
+    }
+
     /// Centre the form on leg `k` of a design.
     pub fn reset_from_design(&mut self, d: &MissionDesign, k: usize) {
         if k + 1 >= d.stops.len() {
@@ -386,36 +395,37 @@ impl TourwrightApp {
     fn window_canvas(&mut self, ui: &mut egui::Ui) {
         let dark = self.settings.dark;
         let q = self.window.quantity;
-        let map = self.window.map.as_ref().expect("checked").clone();
+        // Shared, not copied: the map can hold a million cells.
+        let map = self.window.map.clone().expect("checked");
         let (nx, ny) = (map.spec.nx, map.spec.ny);
-        let id = map.depart.first().map(|e| e.tdb_s.to_bits()).unwrap_or(0)
-            ^ (nx * 7919 + ny) as u64
-            ^ map.cells.len() as u64
-            ^ (map
+        let id = self.window.map_id;
+        // Colour range from the minimum to a cap; the percentiles are computed once per map and
+        // quantity, not every frame. The cap defaults to min + 3 × (30th percentile − min): the
+        // 180° ridge and the far corners would otherwise squash the useful part of the scale.
+        if self.window.stats.is_none_or(|s| s.0 != q || s.1 != id) {
+            let mut vals: Vec<f64> = map
                 .cells
                 .iter()
-                .take(64)
-                .map(|c| c.c3.to_bits())
-                .fold(0u64, |a, b| a.rotate_left(5) ^ b));
-        self.window.map_id = id;
-        // Colour range: from the minimum to a cap (default: min + 4 × (median − min)).
-        let mut vals: Vec<f64> = map
-            .cells
-            .iter()
-            .filter(|c| c.solved)
-            .map(|c| q.of(c))
-            .collect();
-        if vals.is_empty() {
+                .filter(|c| c.solved)
+                .map(|c| q.of(c))
+                .collect();
+            vals.sort_by(f64::total_cmp);
+            self.window.stats = vals.first().map(|&lo| {
+                let hi = vals[vals.len() - 1];
+                let p30 = vals[vals.len() * 3 / 10];
+                (
+                    q,
+                    id,
+                    lo,
+                    (lo + 3.0 * (p30 - lo)).min(hi).max(lo + 1e-9),
+                    hi,
+                )
+            });
+        }
+        let Some((_, _, lo, auto_cap, hi)) = self.window.stats else {
             ui.label("No cell has a solution for these dates.");
             return;
-        }
-        vals.sort_by(f64::total_cmp);
-        let lo = vals[0];
-        // Scale on the lower part of the map: the 180° ridge and the far corners would squash it.
-        let p30 = vals[vals.len() * 3 / 10];
-        let auto_cap = (lo + 3.0 * (p30 - lo))
-            .min(vals[vals.len() - 1])
-            .max(lo + 1e-9);
+        };
         let mut cap = self.window.cap.unwrap_or(auto_cap);
         ui.horizontal(|ui| {
             if style::labelled(
@@ -423,7 +433,7 @@ impl TourwrightApp {
                 "colour scale up to",
                 egui::DragValue::new(&mut cap)
                     .speed((auto_cap - lo) * 0.01)
-                    .range(lo..=vals[vals.len() - 1]),
+                    .range(lo..=hi),
             )
             .changed()
             {
