@@ -5,19 +5,19 @@ use std::hint::black_box;
 use std::path::Path;
 
 use criterion::{Criterion, criterion_group, criterion_main};
-use tourwright::astro::bodies::Planet;
-use tourwright::astro::constants::{AU_KM, MU_SUN};
-use tourwright::astro::ephemeris::Ephemeris;
-use tourwright::astro::kepler;
-use tourwright::astro::lambert::{self, Direction};
-use tourwright::astro::time::Epoch;
-use tourwright::astro::{State, Vec3};
-use tourwright::mission::evaluate::{EvalOptions, Evaluation, evaluate_into};
-use tourwright::mission::{MissionDesign, files};
-use tourwright::search::job::Progress;
-use tourwright::search::optimize::Rng;
-use tourwright::search::optimize::{self, OptimizeOptions, Problem};
-use tourwright::search::window::{self, SecondAxis, WindowSpec};
+use tourwright_astro::bodies::Planet;
+use tourwright_astro::constants::{AU_KM, MU_SUN};
+use tourwright_astro::ephemeris::Ephemeris;
+use tourwright_astro::kepler;
+use tourwright_astro::lambert::{self, Direction};
+use tourwright_astro::time::Epoch;
+use tourwright_astro::{State, Vec3};
+use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate_into};
+use tourwright_mission::{MissionDesign, files};
+use tourwright_search::job::Progress;
+use tourwright_search::optimize::Rng;
+use tourwright_search::optimize::{self, OptimizeOptions, Problem};
+use tourwright_search::window::{self, SecondAxis, WindowSpec};
 
 fn geometries(n: usize) -> Vec<(Vec3, Vec3, f64)> {
     let mut r = Rng::new(42);
@@ -55,7 +55,7 @@ fn six_stop_design() -> MissionDesign {
     d.stops = names
         .iter()
         .zip(days)
-        .map(|(n, t)| tourwright::mission::design::Stop {
+        .map(|(n, t)| tourwright_mission::design::Stop {
             body: n.to_string(),
             epoch: t0.plus_days(t),
             swingby: Default::default(),
@@ -137,8 +137,8 @@ fn benches(c: &mut Criterion) {
     });
     let tern = sample("tern-saturn-ejs.tour.ron");
     g.bench_function("direct_vs_assist_grid240", |b| {
-        let o = tourwright::mission::direct::DirectOptions::for_design(&tern);
-        b.iter(|| black_box(tourwright::mission::direct::compare(&tern, &o)))
+        let o = tourwright_search::direct::DirectOptions::for_design(&tern);
+        b.iter(|| black_box(tourwright_search::direct::compare(&tern, &o)))
     });
     let p = Problem::from_design(&sample("lantern-jupiter-evej.tour.ron"));
     g.bench_function("optimize_evej_100k_evals", |b| {

@@ -5,9 +5,9 @@
 use std::path::Path;
 use std::time::Instant;
 
-use tourwright::mission::files;
-use tourwright::search::job::Progress;
-use tourwright::search::optimize::{OptimizeOptions, Problem, optimize};
+use tourwright_mission::files;
+use tourwright_search::job::Progress;
+use tourwright_search::optimize::{OptimizeOptions, Problem, optimize};
 
 /// (file, published best-known value, note)
 const PROBLEMS: [(&str, f64, &str); 1] = [(

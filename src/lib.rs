@@ -1,21 +1,15 @@
-//! Tourwright: a patched-conic engine and workbench for designing gravity-assist tours.
-//!
-//! Layers, with dependencies pointing one way: [`astro`] (physics) <- [`mission`] (designs and
-//! their evaluation) <- [`search`] (window maps, optimiser, sequence explorer) <- `gui` and `cli`.
+//! Tourwright: the workbench (`gui`) and the command line (`cli`) over the engine crates
+//! `tourwright-astro` (physics), `tourwright-mission` (designs and their evaluation) and
+//! `tourwright-search` (window maps, optimiser, explorer, direct-transfer search).
 //!
 //! Preliminary design only: patched conics with mean-element ephemerides. Confirm every figure in
 //! high-fidelity, independently verified tools before any commitment.
 
-pub mod astro;
 pub mod cli;
 pub mod gui;
-pub mod mission;
-pub mod search;
 
-/// The engine's version (from Cargo.toml).
-pub const VERSION: &str = env!("CARGO_PKG_VERSION");
+pub use tourwright_astro as astro;
+pub use tourwright_mission as mission;
+pub use tourwright_search as search;
 
-/// The caution shown in the README, the CLI and the program's help.
-pub const CAUTION: &str = "Preliminary design only: patched conics with analytic mean-element \
-ephemerides. Confirm every figure in high-fidelity, independently verified tools before any \
-commitment; flight operations follow the responsible agency's rules and licensed practice.";
+pub use tourwright_mission::{CAUTION, VERSION};

@@ -7,10 +7,10 @@ use std::time::Instant;
 
 use eframe::egui::{self, Color32, Key, KeyboardShortcut, Modifiers, RichText};
 
-use crate::mission::direct::DirectComparison;
 use crate::mission::evaluate::{EvalOptions, Evaluation, evaluate_into};
 use crate::mission::{MissionDesign, export, files};
 use crate::search::Job;
+use crate::search::direct::DirectComparison;
 use crate::search::explore::Exploration;
 use crate::search::optimize::OptimizeResult;
 use crate::search::window::WindowMap;

@@ -4,8 +4,8 @@
 use eframe::egui::{self, RichText};
 use egui_plot::{Bar, BarChart, Legend, Plot};
 
-use crate::mission::direct::{self, DirectOptions, Measure};
 use crate::search::Job;
+use crate::search::direct::{self, DirectOptions, Measure};
 
 use super::app::{GuiJob, TourwrightApp};
 use super::style;
@@ -112,7 +112,7 @@ impl TourwrightApp {
 /// The comparison table, sentence and chart; true when "open as a design" was clicked.
 fn direct_result(
     ui: &mut egui::Ui,
-    c: &crate::mission::direct::DirectComparison,
+    c: &crate::search::direct::DirectComparison,
     stale: bool,
     tour_sequence: &str,
 ) -> bool {

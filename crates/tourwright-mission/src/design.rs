@@ -1,0 +1,389 @@
+//! `MissionDesign`: what a designer writes down. This is the file model (RON, `*.tour.ron`):
+//! units are in field names, dates are ISO-8601 text with their time scale, and every field added
+//! after version 1 has a default so that older files keep opening.
+
+use serde::{Deserialize, Serialize};
+
+use tourwright_astro::State;
+use tourwright_astro::bodies::{BodyData, Planet};
+use tourwright_astro::ephemeris::{Ephemeris, EphemerisError, OsculatingElements, OsculatingOrbit};
+use tourwright_astro::lambert::{Branch, Direction};
+use tourwright_astro::time::Epoch;
+
+/// The `format` tag every design file carries.
+pub const FORMAT_TAG: &str = "tourwright-design";
+/// The newest file version this program writes and reads.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// A complete design: the tour, the spacecraft, the launch vehicle and the limits.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MissionDesign {
+    /// Always [`FORMAT_TAG`].
+    pub format: String,
+    /// File version, at most [`FORMAT_VERSION`].
+    pub version: u32,
+    /// Name of the design (shown in the title bar).
+    pub name: String,
+    /// Free notes.
+    #[serde(default)]
+    pub notes: String,
+    /// Bodies defined by osculating elements (asteroids, comets).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub user_bodies: Vec<UserBody>,
+    /// The tour: Launch, any number of Swing-bys, Arrival.
+    pub stops: Vec<Stop>,
+    /// Per leg (between stop k and k+1) Lambert options; missing entries take the defaults.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub legs: Vec<LegOptions>,
+    /// Launch limits.
+    #[serde(default)]
+    pub launch: LaunchLimits,
+    /// What happens at the last stop.
+    #[serde(default)]
+    pub arrival: ArrivalGoal,
+    /// Spacecraft masses and engine.
+    #[serde(default)]
+    pub spacecraft: Spacecraft,
+    /// Launch-vehicle performance (C3 -> injected mass), if known.
+    #[serde(default)]
+    pub launch_vehicle: Option<LaunchVehicle>,
+    /// Bounds and objective for the date optimiser.
+    #[serde(default)]
+    pub search: SearchBounds,
+}
+
+/// A body defined by heliocentric osculating elements.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct UserBody {
+    /// Name used by stops (must not clash with a catalogue planet).
+    pub name: String,
+    /// Gravitational parameter, km³/s² (0 for a point target).
+    #[serde(default)]
+    pub mu_km3_s2: f64,
+    /// Mean radius, km.
+    #[serde(default)]
+    pub radius_km: f64,
+    /// Elements at their epoch.
+    pub elements: OsculatingElements,
+}
+
+/// One encounter of the tour.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Stop {
+    /// Body name: a catalogue planet or a user body.
+    pub body: String,
+    /// Epoch of the encounter.
+    pub epoch: Epoch,
+    /// Swing-by settings (used for stops between launch and arrival).
+    #[serde(default, skip_serializing_if = "SwingbySettings::is_default")]
+    pub swingby: SwingbySettings,
+}
+
+/// How a swing-by is modelled.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct SwingbySettings {
+    /// Minimum periapsis altitude, km; the body's default when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub min_altitude_km: Option<f64>,
+    /// Targeted or shaped.
+    #[serde(default)]
+    pub mode: SwingbyMode,
+}
+
+impl SwingbySettings {
+    /// True for the default settings (targeted, body's minimum altitude): not written to files.
+    pub fn is_default(&self) -> bool {
+        *self == SwingbySettings::default()
+    }
+}
+
+/// Targeted: the epochs fix both legs and the swing-by is what it must be (powered if needed).
+/// Shaped: the designer sets periapsis altitude and aim; the next leg is flown ballistically.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, Default)]
+pub enum SwingbyMode {
+    /// The legs are Lambert arcs between the stops' epochs.
+    #[default]
+    Targeted,
+    /// The outgoing v∞ follows from the periapsis altitude and the B-plane aim angle.
+    Shaped {
+        /// Periapsis altitude above the equatorial radius, km.
+        altitude_km: f64,
+        /// Aim angle in the B-plane, degrees from T towards R.
+        aim_deg: f64,
+    },
+}
+
+/// Lambert options of one leg.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct LegOptions {
+    /// Complete revolutions about the Sun.
+    #[serde(default)]
+    pub revolutions: u32,
+    /// Branch for multi-revolution arcs.
+    #[serde(default)]
+    pub branch: Branch,
+    /// Sense of motion.
+    #[serde(default)]
+    pub direction: Direction,
+}
+
+/// Launch limits.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct LaunchLimits {
+    /// Largest C3 the launch can give, km²/s².
+    #[serde(default)]
+    pub max_c3_km2_s2: Option<f64>,
+    /// Smallest acceptable declination of the launch asymptote, degrees.
+    #[serde(default)]
+    pub min_dla_deg: Option<f64>,
+    /// Largest acceptable declination of the launch asymptote, degrees.
+    #[serde(default)]
+    pub max_dla_deg: Option<f64>,
+}
+
+/// What the spacecraft does at the last stop.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, Default)]
+pub enum ArrivalGoal {
+    /// Fly past: no arrival manoeuvre.
+    #[default]
+    FlybyOnly,
+    /// Capture into an orbit of this periapsis radius and eccentricity (impulse at periapsis).
+    Capture {
+        /// Periapsis radius of the capture orbit, km.
+        periapsis_radius_km: f64,
+        /// Eccentricity of the capture orbit (0 ≤ e < 1).
+        eccentricity: f64,
+    },
+    /// Match the body's velocity (small bodies): Δv = |v∞|.
+    Rendezvous,
+}
+
+/// Spacecraft masses and main engine.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Spacecraft {
+    /// Name of the spacecraft.
+    #[serde(default)]
+    pub name: String,
+    /// Dry mass, kg.
+    pub dry_mass_kg: f64,
+    /// Propellant loaded, kg.
+    pub propellant_kg: f64,
+    /// Specific impulse of the main engine, s.
+    pub isp_s: f64,
+}
+
+impl Default for Spacecraft {
+    fn default() -> Self {
+        Spacecraft {
+            name: String::new(),
+            dry_mass_kg: 1000.0,
+            propellant_kg: 1000.0,
+            isp_s: 320.0,
+        }
+    }
+}
+
+/// One point of a launch-vehicle performance curve.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PerformancePoint {
+    /// Launch energy, km²/s².
+    pub c3_km2_s2: f64,
+    /// Mass injected at that C3, kg.
+    pub mass_kg: f64,
+}
+
+/// A launch vehicle's C3 -> injected-mass table.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LaunchVehicle {
+    /// Name (for invented or illustrative curves, say so in it or in `note`).
+    pub name: String,
+    /// Where the curve comes from.
+    #[serde(default)]
+    pub note: String,
+    /// Points in increasing C3.
+    pub performance: Vec<PerformancePoint>,
+}
+
+/// What the optimiser minimises or maximises.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default, Hash)]
+pub enum Objective {
+    /// Launch v∞ plus every spacecraft Δv (the usual MGA benchmark measure), km/s.
+    #[default]
+    TotalDvWithLaunchVinf,
+    /// Spacecraft Δv only, with C3 held under the design's limit, km/s.
+    SpacecraftDv,
+    /// Mass delivered with the launch vehicle (maximised), kg.
+    DeliveredMass,
+    /// Total time of flight (minimised), days.
+    TimeOfFlight,
+}
+
+/// Bounds of a time-of-flight variable, days.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct TofBounds {
+    /// Shortest, days.
+    pub min_days: f64,
+    /// Longest, days.
+    pub max_days: f64,
+}
+
+/// Search bounds: launch window and per-leg time of flight.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct SearchBounds {
+    /// Earliest launch.
+    #[serde(default)]
+    pub launch_earliest: Option<Epoch>,
+    /// Latest launch.
+    #[serde(default)]
+    pub launch_latest: Option<Epoch>,
+    /// Per-leg TOF bounds; missing legs get ±30% around the design's current TOF.
+    #[serde(default)]
+    pub leg_tof: Vec<TofBounds>,
+    /// Limit on the total flight time, days.
+    #[serde(default)]
+    pub max_total_tof_days: Option<f64>,
+    /// The objective.
+    #[serde(default)]
+    pub objective: Objective,
+}
+
+/// A body reference resolved once for evaluation: physical data and its ephemeris.
+#[derive(Clone, Copy, Debug)]
+pub enum ResolvedBody {
+    /// A catalogue planet.
+    Planet(Planet),
+    /// A user body by index into `user_bodies`, with its orbit.
+    User(usize, OsculatingOrbit),
+}
+
+impl ResolvedBody {
+    /// Heliocentric state at `t`.
+    #[inline]
+    pub fn state(&self, t: Epoch) -> Result<State, EphemerisError> {
+        match self {
+            ResolvedBody::Planet(p) => p.state(t),
+            ResolvedBody::User(_, o) => o.state(t),
+        }
+    }
+}
+
+impl MissionDesign {
+    /// An empty two-stop design (Earth to Mars) to start from.
+    pub fn new_blank() -> Self {
+        let t0 = Epoch::parse("2033-04-01").expect("valid literal");
+        MissionDesign {
+            format: FORMAT_TAG.into(),
+            version: FORMAT_VERSION,
+            name: "Untitled tour".into(),
+            notes: String::new(),
+            user_bodies: vec![],
+            stops: vec![
+                Stop {
+                    body: "Earth".into(),
+                    epoch: t0,
+                    swingby: Default::default(),
+                },
+                Stop {
+                    body: "Mars".into(),
+                    epoch: t0.plus_days(210.0),
+                    swingby: Default::default(),
+                },
+            ],
+            legs: vec![],
+            launch: Default::default(),
+            arrival: ArrivalGoal::FlybyOnly,
+            spacecraft: Default::default(),
+            launch_vehicle: None,
+            search: Default::default(),
+        }
+    }
+
+    /// Resolve a body name: catalogue planets first, then user bodies (case-insensitive).
+    pub fn resolve(&self, name: &str) -> Option<ResolvedBody> {
+        if let Some(p) = Planet::from_name(name) {
+            return Some(ResolvedBody::Planet(p));
+        }
+        self.user_bodies
+            .iter()
+            .position(|b| b.name.eq_ignore_ascii_case(name.trim()))
+            .and_then(|i| {
+                OsculatingOrbit::new(self.user_bodies[i].elements)
+                    .ok()
+                    .map(|o| ResolvedBody::User(i, o))
+            })
+    }
+
+    /// Physical data of a resolved body.
+    pub fn body_data(&self, b: &ResolvedBody) -> BodyData {
+        match b {
+            ResolvedBody::Planet(p) => p.data(),
+            ResolvedBody::User(i, _) => {
+                let u = &self.user_bodies[*i];
+                BodyData {
+                    mu: u.mu_km3_s2.max(0.0),
+                    radius_km: u.radius_km.max(0.0),
+                    min_altitude_km: 0.0,
+                    soi_km: 0.0,
+                }
+            }
+        }
+    }
+
+    /// Lambert options of leg `k` (defaults when the file lists fewer legs).
+    pub fn leg(&self, k: usize) -> LegOptions {
+        self.legs.get(k).copied().unwrap_or_default()
+    }
+
+    /// The sequence as letters, e.g. `E-V-E-J`.
+    pub fn sequence_label(&self) -> String {
+        self.stops
+            .iter()
+            .map(|s| {
+                Planet::from_name(&s.body)
+                    .map(|p| p.letter().to_string())
+                    .unwrap_or(s.body.clone())
+            })
+            .collect::<Vec<_>>()
+            .join("-")
+    }
+
+    /// Total time of flight, days.
+    pub fn total_tof_days(&self) -> f64 {
+        match (self.stops.first(), self.stops.last()) {
+            (Some(a), Some(b)) => b.epoch.days() - a.epoch.days(),
+            _ => 0.0,
+        }
+    }
+
+    /// Per-leg TOF bounds for search: from the file, else ±30% around the current TOF.
+    pub fn tof_bounds(&self, k: usize) -> TofBounds {
+        if let Some(b) = self.search.leg_tof.get(k) {
+            return *b;
+        }
+        let tof = self.stops[k + 1].epoch.days() - self.stops[k].epoch.days();
+        TofBounds {
+            min_days: (tof * 0.7).max(1.0),
+            max_days: tof * 1.3 + 1.0,
+        }
+    }
+
+    /// Launch window for search: from the file, else ±60 days around the current launch.
+    pub fn launch_window(&self) -> (Epoch, Epoch) {
+        let t0 = self.stops[0].epoch;
+        (
+            self.search.launch_earliest.unwrap_or(t0.plus_days(-60.0)),
+            self.search.launch_latest.unwrap_or(t0.plus_days(60.0)),
+        )
+    }
+}

@@ -1,0 +1,280 @@
+//! The sequence explorer: enumerate planet sequences from a launch body to a target, prune the
+//! hopeless ones cheaply, optimise each survivor's dates within a budget and rank them.
+//!
+//! Pruning (cheap and conservative, from energy alone): reaching body B's orbit from body A's needs
+//! at least the Hohmann v∞ at A; and leaving A with v∞ ≤ u, the heliocentric speed is at most
+//! V_A + u, so energy conservation bounds the speed at B and hence v∞ at B by
+//! √((V_A + u)² + 2μ☉(1/r_B − 1/r_A)) + V_B (circular mean orbits). Starting from the launch v∞
+//! that the C3 limit allows, a sequence is dropped when some leg needs more v∞ than that bound
+//! (plus 1 km/s for eccentric and inclined orbits and 1 km/s of powered swing-by per stop), or when
+//! the sum of Hohmann times exceeds twice the TOF limit. Repeated bodies (V-V, E-E) are resonant
+//! legs of one revolution.
+
+use crate::direct::hohmann;
+use tourwright_astro::bodies::Planet;
+use tourwright_astro::ephemeris::MeanElements;
+use tourwright_astro::time::Epoch;
+use tourwright_mission::design::{
+    LegOptions, MissionDesign, Objective, SearchBounds, Stop, TofBounds,
+};
+use tourwright_mission::evaluate::evaluate;
+
+use crate::job::Progress;
+use crate::optimize::{OptimizeOptions, Problem, optimize};
+
+/// What to explore.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ExploreSpec {
+    /// Launch body.
+    pub from: Planet,
+    /// Target body.
+    pub to: Planet,
+    /// Launch period.
+    pub launch: (Epoch, Epoch),
+    /// Bodies allowed for swing-bys.
+    pub via: Vec<Planet>,
+    /// Largest number of swing-bys.
+    pub max_swingbys: usize,
+    /// Largest total time of flight, years.
+    pub max_tof_years: f64,
+    /// Objective for ranking.
+    pub objective: Objective,
+    /// Optimiser evaluations per surviving sequence.
+    pub evals_per_sequence: u64,
+    /// Seed.
+    pub seed: u64,
+}
+
+/// One ranked sequence.
+#[derive(Clone, Debug)]
+pub struct Candidate {
+    /// The sequence, e.g. `E-V-E-J`.
+    pub label: String,
+    /// The optimised design.
+    pub design: MissionDesign,
+    /// Penalised objective value.
+    pub value: f64,
+    /// Launch epoch.
+    pub launch: Epoch,
+    /// Total TOF, days.
+    pub tof_days: f64,
+    /// Launch C3, km²/s².
+    pub c3: f64,
+    /// Spacecraft Δv, km/s.
+    pub dv_km_s: f64,
+    /// Delivered mass with the launch vehicle, kg.
+    pub delivered_kg: Option<f64>,
+    /// True when the design breaks no limit.
+    pub feasible: bool,
+}
+
+/// Result of an exploration.
+#[derive(Clone, Debug, Default)]
+pub struct Exploration {
+    /// Sequences enumerated.
+    pub enumerated: usize,
+    /// Sequences pruned, with the reason.
+    pub pruned: Vec<(String, &'static str)>,
+    /// Optimised sequences, best first.
+    pub ranked: Vec<Candidate>,
+}
+
+fn label(seq: &[Planet]) -> String {
+    seq.iter().map(|p| p.letter()).collect::<Vec<_>>().join("-")
+}
+
+fn mean_a(p: Planet) -> f64 {
+    MeanElements::of(p).a_km()
+}
+
+/// Leg TOF bounds (days) between two bodies: 0.4 to 2.2 Hohmann times; resonant same-body legs
+/// 1.02 to 2.6 orbital periods.
+pub fn leg_bounds(a: Planet, b: Planet) -> TofBounds {
+    if a == b {
+        let p = MeanElements::of(a).period_days();
+        TofBounds {
+            min_days: 1.02 * p,
+            max_days: 2.6 * p,
+        }
+    } else {
+        let h = hohmann(mean_a(a), mean_a(b)).tof_days;
+        TofBounds {
+            min_days: (0.4 * h).max(20.0),
+            max_days: 2.2 * h,
+        }
+    }
+}
+
+/// Why a sequence is hopeless, or `None` when it may work.
+pub fn prune_reason(
+    seq: &[Planet],
+    max_launch_vinf: f64,
+    max_tof_days: f64,
+) -> Option<&'static str> {
+    use tourwright_astro::constants::MU_SUN;
+    let h = |a: Planet, b: Planet| hohmann(mean_a(a), mean_a(b));
+    let mut u = max_launch_vinf;
+    for (k, w) in seq.windows(2).enumerate() {
+        let (a, b) = (w[0], w[1]);
+        if a == b {
+            continue;
+        }
+        if h(a, b).vinf_depart > u + 1.0 {
+            return Some(if k == 0 {
+                "launch energy cannot reach the first body"
+            } else {
+                "the v∞ available cannot reach the next body"
+            });
+        }
+        let (ra, rb) = (mean_a(a), mean_a(b));
+        let (va, vb) = ((MU_SUN / ra).sqrt(), (MU_SUN / rb).sqrt());
+        let s2 = (va + u).powi(2) + 2.0 * MU_SUN * (1.0 / rb - 1.0 / ra);
+        u = s2.max(0.0).sqrt() + vb + 1.0;
+    }
+    let total: f64 = seq
+        .windows(2)
+        .map(|w| {
+            if w[0] == w[1] {
+                MeanElements::of(w[0]).period_days()
+            } else {
+                h(w[0], w[1]).tof_days
+            }
+        })
+        .sum();
+    if total > 2.0 * max_tof_days {
+        return Some("too slow for the TOF limit");
+    }
+    None
+}
+
+/// Every sequence launch, up to `max_swingbys` of the `via` bodies, target.
+pub fn enumerate(spec: &ExploreSpec) -> Vec<Vec<Planet>> {
+    let mut out = vec![vec![spec.from, spec.to]];
+    let mut frontier: Vec<Vec<Planet>> = vec![vec![]];
+    for _ in 0..spec.max_swingbys {
+        let mut next = Vec::new();
+        for mid in &frontier {
+            for &v in &spec.via {
+                // No body three times in a row; no swing-by of the target just before arrival.
+                let n = mid.len();
+                if n >= 2 && mid[n - 1] == v && mid[n - 2] == v {
+                    continue;
+                }
+                let mut m = mid.clone();
+                m.push(v);
+                let mut seq = vec![spec.from];
+                seq.extend(&m);
+                seq.push(spec.to);
+                if seq[seq.len() - 2] != spec.to {
+                    out.push(seq);
+                }
+                next.push(m);
+            }
+        }
+        frontier = next;
+    }
+    out
+}
+
+/// Build the starting design for a sequence: nominal legs at the middle of their bounds.
+pub fn design_for(seq: &[Planet], spec: &ExploreSpec, template: &MissionDesign) -> MissionDesign {
+    let mut d = template.clone();
+    d.name = format!("{} explored", label(seq));
+    let mid = Epoch::from_tdb_seconds(0.5 * (spec.launch.0.tdb_s + spec.launch.1.tdb_s));
+    let mut t = mid;
+    d.stops = Vec::with_capacity(seq.len());
+    d.legs.clear();
+    let mut bounds = Vec::new();
+    for (k, p) in seq.iter().enumerate() {
+        if k > 0 {
+            let b = leg_bounds(seq[k - 1], *p);
+            t = t.plus_days(0.5 * (b.min_days + b.max_days));
+            bounds.push(b);
+            d.legs.push(LegOptions {
+                revolutions: u32::from(seq[k - 1] == *p),
+                ..Default::default()
+            });
+        }
+        d.stops.push(Stop {
+            body: p.name().into(),
+            epoch: t,
+            swingby: Default::default(),
+        });
+    }
+    d.search = SearchBounds {
+        launch_earliest: Some(spec.launch.0),
+        launch_latest: Some(spec.launch.1),
+        leg_tof: bounds,
+        max_total_tof_days: Some(spec.max_tof_years * 365.25),
+        objective: spec.objective,
+    };
+    d
+}
+
+/// Run the exploration. Sequences are optimised one after another (each on all cores).
+pub fn explore(spec: &ExploreSpec, template: &MissionDesign, progress: &Progress) -> Exploration {
+    let max_vinf = template.launch.max_c3_km2_s2.map(f64::sqrt).unwrap_or(10.0);
+    let max_tof = spec.max_tof_years * 365.25;
+    let seqs = enumerate(spec);
+    let mut ex = Exploration {
+        enumerated: seqs.len(),
+        ..Default::default()
+    };
+    let mut survivors = Vec::new();
+    for s in seqs {
+        match prune_reason(&s, max_vinf, max_tof) {
+            Some(r) => ex.pruned.push((label(&s), r)),
+            None => survivors.push(s),
+        }
+    }
+    progress.set_total(survivors.len() as u64);
+    for (i, s) in survivors.iter().enumerate() {
+        if progress.is_cancelled() {
+            break;
+        }
+        progress.set_message(format!(
+            "optimising {} ({}/{})",
+            label(s),
+            i + 1,
+            survivors.len()
+        ));
+        let d = design_for(s, spec, template);
+        let p = Problem::from_design(&d);
+        let inner = crate::job::Progress::new();
+        let r = optimize(
+            &p,
+            &OptimizeOptions {
+                seed: spec.seed,
+                max_evals: spec.evals_per_sequence,
+                islands: 2,
+                ..Default::default()
+            },
+            &inner,
+            false,
+        );
+        let e = evaluate(&r.design);
+        progress.offer_best(r.value);
+        ex.ranked.push(Candidate {
+            label: label(s),
+            launch: r.design.stops[0].epoch,
+            tof_days: e.total_tof_days(),
+            c3: e.launch.c3,
+            dv_km_s: e.ledger.total_dv_km_s,
+            delivered_kg: e.ledger.delivered_mass_kg,
+            feasible: e.complete && !e.violates_limits() && spec_tof_ok(&e, max_tof),
+            value: r.value,
+            design: r.design,
+        });
+        progress.add(1);
+    }
+    ex.ranked.sort_by(|a, b| {
+        b.feasible
+            .cmp(&a.feasible)
+            .then(a.value.total_cmp(&b.value))
+    });
+    ex
+}
+
+fn spec_tof_ok(e: &tourwright_mission::Evaluation, max_tof: f64) -> bool {
+    e.total_tof_days() <= max_tof + 1e-6
+}

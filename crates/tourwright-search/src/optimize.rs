@@ -1,0 +1,505 @@
+//! The date optimiser: self-adaptive differential evolution (jDE: Brest et al., IEEE TEC 10(6),
+//! 2006) on several islands with ring migration and restarts, then a compass-search polish.
+//! Variables are the launch epoch (MJD2000) and each leg's time of flight (days); the objective is
+//! the design's (see `Objective`) plus penalties for broken limits. Deterministic per seed: the
+//! islands' count is fixed, they advance in lock-step blocks and migrate in a fixed order.
+
+use rayon::prelude::*;
+
+use crate::direct::compass_search;
+use tourwright_astro::time::Epoch;
+use tourwright_mission::design::{MissionDesign, Objective, SwingbyMode};
+use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate_into};
+
+use crate::job::Progress;
+
+/// A small, fast, seedable generator (xoshiro256**, Blackman & Vigna 2018).
+#[derive(Clone, Debug)]
+pub struct Rng([u64; 4]);
+
+impl Rng {
+    /// Seed through SplitMix64 so that nearby seeds give unrelated streams.
+    pub fn new(seed: u64) -> Self {
+        let mut z = seed;
+        let mut next = || {
+            z = z.wrapping_add(0x9E37_79B9_7F4A_7C15);
+            let mut x = z;
+            x = (x ^ (x >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
+            x = (x ^ (x >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
+            x ^ (x >> 31)
+        };
+        Rng([next(), next(), next(), next()])
+    }
+    /// Next 64 random bits.
+    pub fn next_u64(&mut self) -> u64 {
+        let s = &mut self.0;
+        let result = s[1].wrapping_mul(5).rotate_left(7).wrapping_mul(9);
+        let t = s[1] << 17;
+        s[2] ^= s[0];
+        s[3] ^= s[1];
+        s[1] ^= s[2];
+        s[0] ^= s[3];
+        s[2] ^= t;
+        s[3] = s[3].rotate_left(45);
+        result
+    }
+    /// Uniform in [0, 1).
+    pub fn uniform(&mut self) -> f64 {
+        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
+    }
+    /// Uniform in [a, b).
+    pub fn range(&mut self, a: f64, b: f64) -> f64 {
+        a + (b - a) * self.uniform()
+    }
+    /// Uniform integer in [0, n).
+    pub fn below(&mut self, n: usize) -> usize {
+        ((self.uniform() * n as f64) as usize).min(n - 1)
+    }
+}
+
+/// An optimisation problem built from a design: bounds, objective and limits.
+#[derive(Clone, Debug)]
+pub struct Problem {
+    /// The design whose epochs are varied (shaped swing-bys are treated as targeted).
+    pub base: MissionDesign,
+    /// Lower bounds: launch (MJD2000), then each leg's TOF (days).
+    pub lo: Vec<f64>,
+    /// Upper bounds.
+    pub hi: Vec<f64>,
+    /// What is minimised.
+    pub objective: Objective,
+}
+
+impl Problem {
+    /// The problem a design's search bounds describe.
+    pub fn from_design(d: &MissionDesign) -> Self {
+        let mut base = d.clone();
+        for s in base.stops.iter_mut() {
+            if matches!(s.swingby.mode, SwingbyMode::Shaped { .. }) {
+                s.swingby.mode = SwingbyMode::Targeted;
+            }
+        }
+        let (a, b) = d.launch_window();
+        let mut lo = vec![a.mjd2000()];
+        let mut hi = vec![b.mjd2000()];
+        for k in 0..d.stops.len().saturating_sub(1) {
+            let t = d.tof_bounds(k);
+            lo.push(t.min_days);
+            hi.push(t.max_days);
+        }
+        Problem {
+            base,
+            lo,
+            hi,
+            objective: d.search.objective,
+        }
+    }
+
+    /// Number of variables.
+    pub fn dim(&self) -> usize {
+        self.lo.len()
+    }
+
+    /// Write the epochs of `x` into `d`.
+    pub fn apply(&self, x: &[f64], d: &mut MissionDesign) {
+        let mut t = Epoch::from_mjd2000(x[0]);
+        d.stops[0].epoch = t;
+        for (stop, tof) in d.stops.iter_mut().skip(1).zip(&x[1..]) {
+            t = t.plus_days(*tof);
+            stop.epoch = t;
+        }
+    }
+
+    /// The design at `x`.
+    pub fn design_at(&self, x: &[f64]) -> MissionDesign {
+        let mut d = self.base.clone();
+        self.apply(x, &mut d);
+        d
+    }
+
+    /// The decision vector of a design's current epochs.
+    pub fn vector_of(&self, d: &MissionDesign) -> Vec<f64> {
+        let mut x = vec![d.stops[0].epoch.mjd2000()];
+        for k in 1..d.stops.len() {
+            x.push(d.stops[k].epoch.days() - d.stops[k - 1].epoch.days());
+        }
+        x
+    }
+
+    /// Penalised score of `x` (smaller is better), using `work` as scratch. Penalties (ours, in
+    /// the objective's units): altitude deficit 20 km/s per periapsis-radius fraction, C3 excess
+    /// 0.1 km/s per km²/s², total-TOF excess 0.01 km/s per day; ×1000 for mass objectives.
+    pub fn score(&self, x: &[f64], work: &mut Workspace) -> f64 {
+        self.apply(x, &mut work.design);
+        evaluate_into(
+            &work.design,
+            &EvalOptions { samples_per_leg: 0 },
+            &mut work.eval,
+        );
+        let e = &work.eval;
+        let base = e.objective(self.objective);
+        if !base.is_finite() {
+            return 1e9;
+        }
+        let mut pen = 0.0;
+        for w in &e.warnings {
+            match *w {
+                Warning::AltitudeBelowMinimum {
+                    stop,
+                    altitude_km,
+                    min_km,
+                } => {
+                    let r = self
+                        .base
+                        .resolve(&self.base.stops[stop].body)
+                        .map(|b| self.base.body_data(&b).radius_km)
+                        .unwrap_or(1.0);
+                    pen += 20.0 * (min_km - altitude_km) / (r + min_km);
+                }
+                Warning::C3OverLimit { c3, max } => pen += 0.1 * (c3 - max),
+                Warning::TurnImpossible { .. } => pen += 10.0,
+                _ => {}
+            }
+        }
+        if let Some(m) = self.base.search.max_total_tof_days {
+            pen += 0.01 * (e.total_tof_days() - m).max(0.0);
+        }
+        if self.objective == Objective::DeliveredMass {
+            pen *= 1000.0;
+        }
+        base + pen
+    }
+}
+
+/// Scratch space for scoring: a design copy and an evaluation whose buffers are reused.
+#[derive(Clone, Debug)]
+pub struct Workspace {
+    /// Design copy whose epochs are overwritten.
+    pub design: MissionDesign,
+    /// Reused evaluation.
+    pub eval: Evaluation,
+}
+
+impl Workspace {
+    /// Scratch for a problem.
+    pub fn new(p: &Problem) -> Self {
+        Workspace {
+            design: p.base.clone(),
+            eval: Evaluation::default(),
+        }
+    }
+}
+
+/// Optimiser settings.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct OptimizeOptions {
+    /// Seed of every random choice.
+    pub seed: u64,
+    /// Budget of objective evaluations (all islands together).
+    pub max_evals: u64,
+    /// Optional wall-clock limit, seconds (results then depend on machine speed).
+    pub time_limit_s: Option<f64>,
+    /// Islands (fixed, so that results do not depend on the number of cores).
+    pub islands: usize,
+    /// Individuals per island (0: 15 × dimension, at least 30).
+    pub population: usize,
+}
+
+impl Default for OptimizeOptions {
+    fn default() -> Self {
+        OptimizeOptions {
+            seed: 1,
+            max_evals: 400_000,
+            time_limit_s: None,
+            islands: 4,
+            population: 0,
+        }
+    }
+}
+
+/// What the optimiser found.
+#[derive(Clone, Debug)]
+pub struct OptimizeResult {
+    /// Best decision vector.
+    pub x: Vec<f64>,
+    /// Its penalised score.
+    pub value: f64,
+    /// The design at the optimum.
+    pub design: MissionDesign,
+    /// Objective evaluations used.
+    pub evaluations: u64,
+    /// Trade-off front: (total TOF days, score) pairs, none dominated, sorted by TOF.
+    pub front: Vec<(f64, f64)>,
+    /// True when stopped by cancellation.
+    pub cancelled: bool,
+}
+
+struct Island {
+    rng: Rng,
+    pop: Vec<Vec<f64>>,
+    fit: Vec<f64>,
+    f: Vec<f64>,
+    cr: Vec<f64>,
+    work: Workspace,
+    trial: Vec<f64>,
+    stall: usize,
+    best: f64,
+    front: Vec<(f64, f64)>,
+}
+
+fn add_front(front: &mut Vec<(f64, f64)>, p: (f64, f64)) {
+    if front.iter().any(|q| q.0 <= p.0 && q.1 <= p.1) {
+        return;
+    }
+    front.retain(|q| !(p.0 <= q.0 && p.1 <= q.1));
+    front.push(p);
+    if front.len() > 400 {
+        front.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let keep: Vec<_> = front.iter().step_by(2).copied().collect();
+        *front = keep;
+    }
+}
+
+impl Island {
+    fn new(p: &Problem, np: usize, seed: u64) -> Self {
+        let mut rng = Rng::new(seed);
+        let d = p.dim();
+        let mut work = Workspace::new(p);
+        let mut pop = Vec::with_capacity(np);
+        let mut fit = Vec::with_capacity(np);
+        for _ in 0..np {
+            let x: Vec<f64> = (0..d)
+                .map(|i| p.lo[i] + rng.uniform() * (p.hi[i] - p.lo[i]))
+                .collect();
+            fit.push(p.score(&x, &mut work));
+            pop.push(x);
+        }
+        let best = fit.iter().copied().fold(f64::INFINITY, f64::min);
+        Island {
+            rng,
+            pop,
+            fit,
+            f: vec![0.5; np],
+            cr: vec![0.9; np],
+            work,
+            trial: vec![0.0; d],
+            stall: 0,
+            best,
+            front: Vec::new(),
+        }
+    }
+
+    fn best_index(&self) -> usize {
+        (0..self.fit.len())
+            .min_by(|&a, &b| self.fit[a].total_cmp(&self.fit[b]))
+            .unwrap_or(0)
+    }
+
+    /// One generation of jDE rand/1/bin; returns evaluations used.
+    fn generation(&mut self, p: &Problem, want_front: bool) -> u64 {
+        let np = self.pop.len();
+        let d = p.dim();
+        for i in 0..np {
+            let fi = if self.rng.uniform() < 0.1 {
+                0.1 + 0.9 * self.rng.uniform()
+            } else {
+                self.f[i]
+            };
+            let ci = if self.rng.uniform() < 0.1 {
+                self.rng.uniform()
+            } else {
+                self.cr[i]
+            };
+            let (mut a, mut b, mut c) = (i, i, i);
+            while a == i {
+                a = self.rng.below(np);
+            }
+            while b == i || b == a {
+                b = self.rng.below(np);
+            }
+            while c == i || c == a || c == b {
+                c = self.rng.below(np);
+            }
+            let jr = self.rng.below(d);
+            for j in 0..d {
+                let v = if j == jr || self.rng.uniform() < ci {
+                    self.pop[a][j] + fi * (self.pop[b][j] - self.pop[c][j])
+                } else {
+                    self.pop[i][j]
+                };
+                // Out of bounds: a random point between the parent and the bound.
+                self.trial[j] = if v < p.lo[j] {
+                    p.lo[j] + self.rng.uniform() * (self.pop[i][j] - p.lo[j])
+                } else if v > p.hi[j] {
+                    p.hi[j] - self.rng.uniform() * (p.hi[j] - self.pop[i][j])
+                } else {
+                    v
+                };
+            }
+            let ft = p.score(&self.trial, &mut self.work);
+            if want_front && ft < 1e8 {
+                let tof: f64 = self.trial[1..].iter().sum();
+                add_front(&mut self.front, (tof, ft));
+            }
+            if ft <= self.fit[i] {
+                self.pop[i].copy_from_slice(&self.trial);
+                self.fit[i] = ft;
+                self.f[i] = fi;
+                self.cr[i] = ci;
+            }
+        }
+        let b = self.fit[self.best_index()];
+        if b < self.best - 1e-9 * self.best.abs().max(1.0) {
+            self.best = b;
+            self.stall = 0;
+        } else {
+            self.stall += 1;
+        }
+        np as u64
+    }
+
+    /// Restart around nothing: keep the best, scatter the rest (after a long stall).
+    fn restart(&mut self, p: &Problem) -> u64 {
+        let keep = self.best_index();
+        let d = p.dim();
+        let mut n = 0;
+        for i in 0..self.pop.len() {
+            if i == keep {
+                continue;
+            }
+            for j in 0..d {
+                self.pop[i][j] = p.lo[j] + self.rng.uniform() * (p.hi[j] - p.lo[j]);
+            }
+            self.fit[i] = p.score(&self.pop[i], &mut self.work);
+            self.f[i] = 0.5;
+            self.cr[i] = 0.9;
+            n += 1;
+        }
+        self.stall = 0;
+        n
+    }
+}
+
+/// Run the optimiser. `progress` receives the evaluation count and the best value; cancelling it
+/// stops within one block of generations (a few milliseconds).
+pub fn optimize(
+    p: &Problem,
+    opts: &OptimizeOptions,
+    progress: &Progress,
+    want_front: bool,
+) -> OptimizeResult {
+    let start = std::time::Instant::now();
+    let d = p.dim();
+    let np = if opts.population > 0 {
+        opts.population
+    } else {
+        (15 * d).clamp(30, 120)
+    };
+    let n_isl = opts.islands.max(1);
+    progress.set_total(opts.max_evals);
+    let mut islands: Vec<Island> = (0..n_isl)
+        .into_par_iter()
+        .map(|k| {
+            Island::new(
+                p,
+                np,
+                opts.seed.wrapping_mul(1_000_003).wrapping_add(k as u64),
+            )
+        })
+        .collect();
+    let mut evals = (np * n_isl) as u64;
+    progress.add(evals);
+    let block = 25;
+    let mut cancelled = false;
+    loop {
+        if progress.is_cancelled() {
+            cancelled = true;
+            break;
+        }
+        if evals >= opts.max_evals {
+            break;
+        }
+        if let Some(t) = opts.time_limit_s {
+            if start.elapsed().as_secs_f64() >= t {
+                break;
+            }
+        }
+        let used: u64 = islands
+            .par_iter_mut()
+            .map(|isl| {
+                let mut n = 0;
+                for _ in 0..block {
+                    n += isl.generation(p, want_front);
+                    if isl.stall > 150 {
+                        n += isl.restart(p);
+                    }
+                }
+                n
+            })
+            .sum();
+        evals += used;
+        progress.add(used);
+        // Ring migration: island k's best replaces island k+1's worst.
+        let bests: Vec<(Vec<f64>, f64)> = islands
+            .iter()
+            .map(|isl| {
+                let b = isl.best_index();
+                (isl.pop[b].clone(), isl.fit[b])
+            })
+            .collect();
+        for k in 0..n_isl {
+            let (x, f) = &bests[(k + n_isl - 1) % n_isl];
+            let isl = &mut islands[k];
+            let w = (0..isl.fit.len())
+                .max_by(|&a, &b| isl.fit[a].total_cmp(&isl.fit[b]))
+                .unwrap_or(0);
+            if *f < isl.fit[w] {
+                isl.pop[w].clone_from(x);
+                isl.fit[w] = *f;
+            }
+        }
+        let best = bests.iter().map(|b| b.1).fold(f64::INFINITY, f64::min);
+        progress.offer_best(best);
+        progress.set_message(format!("{evals} evaluations, best {best:.4}"));
+    }
+    // Polish each island's best with a compass search, keep the best result.
+    let polished: Vec<(Vec<f64>, f64)> = islands
+        .par_iter_mut()
+        .map(|isl| {
+            let b = isl.best_index();
+            let x0 = isl.pop[b].clone();
+            let step: Vec<f64> = (0..d)
+                .map(|j| ((p.hi[j] - p.lo[j]) * 0.01).max(0.01))
+                .collect();
+            let work = &mut isl.work;
+            let mut f = |x: &[f64]| p.score(x, work);
+            let (x, fx) = compass_search(&mut f, &x0, &p.lo, &p.hi, &step, 1e-6, 3_000);
+            if fx <= isl.fit[b] {
+                (x, fx)
+            } else {
+                (x0, isl.fit[b])
+            }
+        })
+        .collect();
+    let (x, value) = polished
+        .into_iter()
+        .min_by(|a, b| a.1.total_cmp(&b.1))
+        .expect("at least one island");
+    evals += 3_000 * n_isl as u64;
+    progress.offer_best(value);
+    let mut front = Vec::new();
+    for isl in &islands {
+        for &pt in &isl.front {
+            add_front(&mut front, pt);
+        }
+    }
+    front.sort_by(|a, b| a.0.total_cmp(&b.0));
+    OptimizeResult {
+        design: p.design_at(&x),
+        x,
+        value,
+        evaluations: evals,
+        front,
+        cancelled,
+    }
+}
