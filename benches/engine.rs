@@ -10,9 +10,10 @@ use tourwright_astro::constants::{AU_KM, MU_SUN};
 use tourwright_astro::ephemeris::Ephemeris;
 use tourwright_astro::kepler;
 use tourwright_astro::lambert::{self, Direction};
-use tourwright_astro::time::Epoch;
+use tourwright_astro::time::{Epoch, Tdb};
 use tourwright_astro::{State, Vec3};
-use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate_into};
+use tourwright_mission::PreparedTour;
+use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate};
 use tourwright_mission::{MissionDesign, files};
 use tourwright_search::job::Progress;
 use tourwright_search::optimize::Rng;
@@ -88,7 +89,7 @@ fn benches(c: &mut Criterion) {
         let mut t = 0.0;
         b.iter(|| {
             t += 17.3;
-            black_box(Planet::Mars.state(Epoch::from_tdb_days(t % 9000.0)).ok())
+            black_box(Planet::Mars.state(Tdb::from_days(t % 9000.0)).ok())
         })
     });
     c.bench_function("kepler_propagate", |b| {
@@ -102,17 +103,17 @@ fn benches(c: &mut Criterion) {
             black_box(kepler::propagate(&s, dt, MU_SUN).ok())
         })
     });
-    let d6 = six_stop_design();
+    let d6 = PreparedTour::prepare(&six_stop_design()).unwrap();
     let mut e = Evaluation::default();
     c.bench_function("evaluate_six_stops_with_samples", |b| {
         b.iter(|| {
-            evaluate_into(black_box(&d6), &EvalOptions::default(), &mut e);
+            evaluate(black_box(&d6), &EvalOptions::default(), &mut e);
             black_box(e.complete)
         })
     });
     c.bench_function("evaluate_six_stops_no_samples", |b| {
         b.iter(|| {
-            evaluate_into(black_box(&d6), &EvalOptions { samples_per_leg: 0 }, &mut e);
+            evaluate(black_box(&d6), &EvalOptions::SEARCH, &mut e);
             black_box(e.complete)
         })
     });
@@ -138,9 +139,15 @@ fn benches(c: &mut Criterion) {
     let tern = sample("tern-saturn-ejs.tour.ron");
     g.bench_function("direct_vs_assist_grid240", |b| {
         let o = tourwright_search::direct::DirectOptions::for_design(&tern);
-        b.iter(|| black_box(tourwright_search::direct::compare(&tern, &o)))
+        b.iter(|| {
+            black_box(tourwright_search::direct::compare(
+                &tern,
+                &o,
+                &Progress::new(),
+            ))
+        })
     });
-    let p = Problem::from_design(&sample("lantern-jupiter-evej.tour.ron"));
+    let p = Problem::from_design(&sample("lantern-jupiter-evej.tour.ron")).unwrap();
     g.bench_function("optimize_evej_100k_evals", |b| {
         b.iter(|| {
             black_box(optimize::optimize(

@@ -24,7 +24,7 @@ fn main() {
     println!("|---|---|---|---|---|---|---|");
     for (file, published, note) in PROBLEMS {
         let d = files::load(&dir.join(file)).expect("benchmark design loads");
-        let p = Problem::from_design(&d);
+        let p = Problem::from_design(&d).expect("benchmark design has valid bounds");
         for budget in [50_000u64, 150_000, 500_000] {
             let mut vals = Vec::new();
             let t = Instant::now();

@@ -1,16 +1,19 @@
-//! The workbench's main flows, driven headless with egui_kittest.
+//! The workbench's flows, driven headless with egui_kittest as a user would: buttons, menus and
+//! the keyboard.
+
+use std::path::{Path, PathBuf};
 
 use eframe::egui::accesskit::Role;
 use eframe::egui::{Key, Modifiers};
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use tourwright::gui::TourwrightApp;
+use tourwright::gui::app::Settings;
+use tourwright::gui::files::sample_design;
 use tourwright::mission::design::SwingbyMode;
-use tourwright::mission::files;
+use tourwright::mission::{Edit, files};
 
-fn harness(sample: usize) -> Harness<'static, TourwrightApp> {
-    let mut app = TourwrightApp::on_sample(sample);
-    app.native_dialogs = false;
+fn harness_for(app: TourwrightApp) -> Harness<'static, TourwrightApp> {
     let mut h = Harness::builder()
         .with_size([1440.0, 900.0])
         .build_ui_state(|ui, app: &mut TourwrightApp| app.ui(ui), app);
@@ -18,10 +21,269 @@ fn harness(sample: usize) -> Harness<'static, TourwrightApp> {
     h
 }
 
+fn harness(sample: usize) -> Harness<'static, TourwrightApp> {
+    let mut app = TourwrightApp::on_sample(sample);
+    app.native_dialogs = false;
+    harness_for(app)
+}
+
+/// A sample copied into a temporary folder and opened from there (so that saving never touches
+/// the repository's sample files).
+fn harness_on_copy(sample: usize, dir: &Path) -> (Harness<'static, TourwrightApp>, PathBuf) {
+    let (d, _) = sample_design(sample);
+    let p = dir.join("copy.tour.ron");
+    files::save(&d, &p).unwrap();
+    let mut app = TourwrightApp::with_design(d, Some(p.clone()), Settings::default());
+    app.native_dialogs = false;
+    (harness_for(app), p)
+}
+
 fn altitude(h: &Harness<'_, TourwrightApp>, k: usize) -> f64 {
-    match h.state().doc.design.stops[k].swingby.mode {
+    match h.state().design().stops[k].swingby.mode {
         SwingbyMode::Shaped { altitude_km, .. } => altitude_km,
         SwingbyMode::Targeted => f64::NAN,
+    }
+}
+
+/// The ledger's rows are the design's stops, in order, with their bodies.
+fn assert_ledger_matches(h: &Harness<'_, TourwrightApp>, when: &str) {
+    let app = h.state();
+    let d = app.design();
+    let rows = &app.events.rows;
+    assert_eq!(rows.len(), d.stops.len(), "{when}: ledger rows vs stops");
+    assert_eq!(app.eval.stops.len(), d.stops.len(), "{when}: evaluation");
+    for (k, (row, stop)) in rows.iter().zip(&d.stops).enumerate() {
+        assert_eq!(
+            row[2].display(0),
+            stop.body,
+            "{when}: row {k} shows another body"
+        );
+    }
+}
+
+fn menu(h: &mut Harness<'static, TourwrightApp>, top: &str, entry: &str) {
+    h.get_by_label(top).click();
+    h.run_steps(2);
+    h.get_by_label_contains(entry).click();
+    h.run_steps(3);
+}
+
+fn menu_exact(h: &mut Harness<'static, TourwrightApp>, top: &str, entry: &str) {
+    h.get_by_label(top).click();
+    h.run_steps(2);
+    h.get_by_label(entry).click();
+    h.run_steps(3);
+}
+
+fn menu_role(h: &mut Harness<'static, TourwrightApp>, top: &str, role: Role, entry: &str) {
+    h.get_by_label(top).click();
+    h.run_steps(2);
+    h.get_by_role_and_label(role, entry).click();
+    h.run_steps(3);
+}
+
+fn undo_redo_both_ways(h: &mut Harness<'static, TourwrightApp>, when: &str) {
+    let after = h.state().design().clone();
+    menu(h, "Edit", "Undo");
+    assert_ledger_matches(h, &format!("{when}, Edit ▸ Undo"));
+    let before = h.state().design().clone();
+    assert_ne!(before, after, "{when}: undo changed nothing");
+    menu(h, "Edit", "Redo");
+    assert_ledger_matches(h, &format!("{when}, Edit ▸ Redo"));
+    assert_eq!(*h.state().design(), after, "{when}: redo");
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run_steps(3);
+    assert_ledger_matches(h, &format!("{when}, Ctrl+Z"));
+    assert_eq!(*h.state().design(), before, "{when}: Ctrl+Z");
+    h.key_press_modifiers(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z);
+    h.run_steps(3);
+    assert_ledger_matches(h, &format!("{when}, Ctrl+Shift+Z"));
+    assert_eq!(*h.state().design(), after, "{when}: Ctrl+Shift+Z");
+}
+
+/// The crash that lost work: "+ after" on the Launch stop, then Edit ▸ Undo from the menu.
+#[test]
+fn add_a_stop_then_undo_from_the_menu_does_not_crash() {
+    let mut h = harness(0);
+    let n = h.state().design().stops.len();
+    h.get_all_by_label("+ after").next().unwrap().click();
+    h.run_steps(3);
+    assert_eq!(h.state().design().stops.len(), n + 1);
+    assert_ledger_matches(&h, "after + after");
+    menu(&mut h, "Edit", "Undo");
+    assert_eq!(h.state().design().stops.len(), n);
+    assert_ledger_matches(&h, "after Edit ▸ Undo");
+}
+
+#[test]
+fn structural_edits_undo_and_redo_from_menu_and_keyboard() {
+    let mut h = harness(0);
+    // Add a stop (the second "+ after": after the first swing-by).
+    h.get_all_by_label("+ after").nth(1).unwrap().click();
+    h.run_steps(3);
+    assert_ledger_matches(&h, "add");
+    undo_redo_both_ways(&mut h, "add");
+    // Remove a stop.
+    h.get_all_by_label("remove").nth(2).unwrap().click();
+    h.run_steps(3);
+    assert_ledger_matches(&h, "remove");
+    undo_redo_both_ways(&mut h, "remove");
+    // Move a stop.
+    h.get_all_by_label("down").nth(1).unwrap().click();
+    h.run_steps(3);
+    assert_ledger_matches(&h, "move");
+    undo_redo_both_ways(&mut h, "move");
+    // Switch a swing-by's mode.
+    h.get_all_by_label("shaped").next().unwrap().click();
+    h.run_steps(3);
+    assert_ledger_matches(&h, "mode");
+    undo_redo_both_ways(&mut h, "mode");
+    // Change a body (through the same edit the combo box sends).
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::SetBody {
+            stop: 1,
+            body: "Mars".into(),
+        }));
+    h.run_steps(3);
+    assert_eq!(h.state().design().stops[1].body, "Mars");
+    assert_ledger_matches(&h, "body");
+    undo_redo_both_ways(&mut h, "body");
+}
+
+#[test]
+fn every_file_edit_and_view_menu_entry_works() {
+    let dir = tempfile::tempdir().unwrap();
+    let (mut h, path) = harness_on_copy(0, dir.path());
+    // View: every panel toggle and every view, then the themes.
+    for (entry, check) in [
+        ("Tour panel", 0),
+        ("Ledger", 1),
+        ("Search panel", 2),
+        ("Tour panel", 0),
+        ("Ledger", 1),
+        ("Search panel", 2),
+    ] {
+        let before = {
+            let s = &h.state().settings;
+            [s.show_tour, s.show_ledger, s.show_search][check]
+        };
+        menu_role(&mut h, "View", Role::CheckBox, entry);
+        let s = &h.state().settings;
+        assert_ne!([s.show_tour, s.show_ledger, s.show_search][check], before);
+        h.key_press(Key::Escape);
+        h.run_steps(2);
+    }
+    for v in tourwright::gui::action::View::ALL {
+        menu_role(&mut h, "View", Role::RadioButton, v.title());
+        assert_eq!(h.state().settings.view, v);
+        assert_ledger_matches(&h, v.title());
+    }
+    menu_role(&mut h, "View", Role::RadioButton, "Light theme");
+    assert!(!h.state().settings.dark);
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+    menu_role(&mut h, "View", Role::RadioButton, "Dark theme");
+    assert!(h.state().settings.dark);
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+    // Edit: undo and redo an edit.
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::SetName(
+            "renamed".into(),
+        )));
+    h.run_steps(2);
+    undo_redo_both_ways(&mut h, "rename");
+    // File ▸ Save writes the copy.
+    menu_exact(&mut h, "File", "Save         Ctrl+S");
+    assert!(!h.state().doc.is_dirty());
+    assert_eq!(files::load(&path).unwrap(), *h.state().design());
+    // File ▸ Export ▸ each table and the OEM, through the typed-path prompt.
+    for (entry, file, head) in [
+        ("Event table", "e.csv", "stop,kind,body"),
+        ("Ledger (CSV)", "l.csv", "item,body"),
+        ("Trajectory samples", "s.csv", "leg,epoch_utc"),
+        ("CCSDS OEM", "t.oem", "CCSDS_OEM_VERS"),
+    ] {
+        h.get_by_label("File").click();
+        h.run_steps(2);
+        h.get_by_label("Export").click();
+        h.run_steps(2);
+        h.get_by_label_contains(entry).click();
+        h.run_steps(2);
+        let target = dir.path().join(file);
+        h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 =
+            target.to_string_lossy().to_string();
+        h.run_steps(1);
+        h.get_by_label("OK").click();
+        h.run_steps(3);
+        let text = std::fs::read_to_string(&target).unwrap();
+        assert!(text.starts_with(head), "{entry}: {}", &text[..40]);
+    }
+    // Picture: asks for a path and does not panic (the headless harness takes no screenshots).
+    h.get_by_label("File").click();
+    h.run_steps(2);
+    h.get_by_label("Export").click();
+    h.run_steps(2);
+    h.get_by_label_contains("Picture").click();
+    h.run_steps(2);
+    assert!(h.state().dialogs.path_prompt.is_some());
+    h.get_by_label("Cancel").click();
+    h.run_steps(2);
+    // Open… shows the prompt; cancel keeps the design.
+    let before = h.state().design().clone();
+    menu(&mut h, "File", "Open…");
+    assert!(h.state().dialogs.path_prompt.is_some());
+    h.get_by_label("Cancel").click();
+    h.run_steps(2);
+    assert_eq!(*h.state().design(), before);
+    // Recent lists the saved copy; opening it keeps the design.
+    h.get_by_label("File").click();
+    h.run_steps(2);
+    h.get_by_label("Recent").click();
+    h.run_steps(2);
+    h.get_by_label_contains("copy.tour.ron").click();
+    h.run_steps(3);
+    assert_eq!(*h.state().design(), before);
+    // Open sample ▸ each sample (nothing unsaved, so no question).
+    for (i, (name, _)) in tourwright::gui::files::SAMPLES.iter().enumerate() {
+        h.get_by_label("File").click();
+        h.run_steps(2);
+        h.get_by_label("Open sample").click();
+        h.run_steps(2);
+        h.get_by_label(name).click();
+        h.run_steps(3);
+        assert_eq!(h.state().design().name, sample_design(i).0.name);
+        assert_ledger_matches(&h, name);
+    }
+    // New asks nothing when nothing is unsaved (a sample opened from disk is saved).
+    menu_exact(&mut h, "File", "New          Ctrl+N");
+    assert_eq!(h.state().design().name, "Untitled tour");
+    // Save as… through the prompt.
+    let target = dir.path().join("new.tour.ron");
+    menu(&mut h, "File", "Save as");
+    h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 = target.to_string_lossy().to_string();
+    h.run_steps(1);
+    h.get_by_label("OK").click();
+    h.run_steps(3);
+    assert_eq!(files::load(&target).unwrap(), *h.state().design());
+    // Quit with unsaved changes asks first; Cancel keeps the workbench.
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::SetName(
+            "x".into(),
+        )));
+    h.run_steps(2);
+    menu(&mut h, "File", "Quit");
+    assert!(h.query_by_label("Unsaved changes").is_some());
+    h.get_by_label("Cancel").click();
+    h.run_steps(2);
+    assert!(h.state().dialogs.confirm.is_none());
+    // Help topics open and close.
+    for t in tourwright::gui::menus::HELP_TOPICS {
+        menu(&mut h, "Help", t);
+        assert_eq!(h.state().dialogs.help, Some(t));
+        h.state_mut()
+            .apply(tourwright::gui::action::Action::CloseHelp);
+        h.run_steps(2);
     }
 }
 
@@ -72,7 +334,7 @@ fn reshape_a_swingby_and_undo() {
 #[test]
 fn invalid_epoch_is_refused_with_a_reason() {
     let mut h = harness(0);
-    let before = h.state().doc.design.clone();
+    let before = h.state().design().clone();
     let date_field = || {
         |n: &egui_kittest::kittest::AccessKitNode<'_>| {
             n.role() == Role::TextInput && n.value().as_deref() == Some("2029-10-16")
@@ -91,30 +353,10 @@ fn invalid_epoch_is_refused_with_a_reason() {
         "no validation message shown"
     );
     assert_eq!(
-        h.state().doc.design,
+        *h.state().design(),
         before,
         "an invalid date must not change the design"
     );
-}
-
-#[test]
-fn save_as_through_the_path_prompt_and_read_back() {
-    let dir = tempfile::tempdir().unwrap();
-    let target = dir.path().join("copy.tour.ron");
-    let mut h = harness(2);
-    h.get_by_label("File").click();
-    h.run_steps(2);
-    h.get_by_label_contains("Save as").click();
-    h.run_steps(2);
-    assert!(h.state().path_prompt.is_some());
-    h.state_mut().path_prompt.as_mut().unwrap().1 = target.to_string_lossy().to_string();
-    h.run_steps(1);
-    h.get_by_label("OK").click();
-    h.run_steps(3);
-    let back = files::load(&target).unwrap();
-    assert_eq!(back, h.state().doc.design);
-    assert!(!h.state().doc.is_dirty());
-    assert!(!h.state().title().starts_with('*'));
 }
 
 #[test]
@@ -123,40 +365,40 @@ fn broken_file_leaves_the_design_unchanged() {
     let bad = dir.path().join("bad.tour.ron");
     std::fs::write(&bad, "(format: \"tourwright-design\", version: 1, name: \"x\",\n stops: [(body: \"Earth\" epoch: \"2030-01-01\")])").unwrap();
     let mut h = harness(1);
-    let before = h.state().doc.design.clone();
-    h.get_by_label("File").click();
-    h.run_steps(2);
-    h.get_by_label_contains("Open…").click();
-    h.run_steps(2);
-    h.state_mut().path_prompt.as_mut().unwrap().1 = bad.to_string_lossy().to_string();
+    let before = h.state().design().clone();
+    menu(&mut h, "File", "Open…");
+    h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 = bad.to_string_lossy().to_string();
     h.run_steps(1);
     h.get_by_label("OK").click();
     h.run_steps(3);
-    let err = h.state().error.clone().expect("an error dialog");
+    let err = h.state().dialogs.error.clone().expect("an error dialog");
     assert!(err.contains("bad.tour.ron:2:"), "{err}");
     assert!(h.query_by_label_contains("unchanged").is_some());
-    assert_eq!(h.state().doc.design, before);
+    assert_eq!(*h.state().design(), before);
     h.get_by_label("OK").click();
     h.run_steps(2);
-    assert!(h.state().error.is_none());
+    assert!(h.state().dialogs.error.is_none());
 }
 
 #[test]
 fn unsaved_changes_ask_before_new() {
     let mut h = harness(0);
-    h.state_mut().doc.edit(|d| d.name = "changed".into());
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::SetName(
+            "changed".into(),
+        )));
     h.run_steps(1);
     h.key_press_modifiers(Modifiers::COMMAND, Key::N);
     h.run_steps(2);
     assert!(h.query_by_label("Unsaved changes").is_some());
     h.get_by_label("Cancel").click();
     h.run_steps(2);
-    assert_eq!(h.state().doc.design.name, "changed");
+    assert_eq!(h.state().design().name, "changed");
     h.key_press_modifiers(Modifiers::COMMAND, Key::N);
     h.run_steps(2);
     h.get_by_label("Discard changes").click();
     h.run_steps(2);
-    assert_eq!(h.state().doc.design.name, "Untitled tour");
+    assert_eq!(h.state().design().name, "Untitled tour");
 }
 
 #[test]
@@ -172,39 +414,69 @@ fn every_view_draws_and_frames_keep_coming_while_a_job_runs() {
         h.get_by_label(tab).click();
         h.run_steps(3);
     }
-    // A long optimiser run: the UI keeps building frames while it works, then cancel stops it.
-    h.state_mut().search.evals = 50_000_000;
-    h.state_mut().start_optimizer();
-    let t = std::time::Instant::now();
+    // A long optimiser run, started from the Search panel's button: the UI keeps building frames
+    // while it works, then cancel stops it.
+    h.state_mut().views.search.evals = 50_000_000;
+    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+    h.get_by_label("Optimise dates").click();
+    h.run_steps(2);
     for _ in 0..20 {
         h.step();
     }
     assert!(
-        !h.state().jobs.is_empty(),
+        !h.state().jobs.running.is_empty(),
         "the job should still be running"
     );
-    // Twenty frames while the job runs on other threads (not a timing assertion: a blocked UI
-    // thread would not return from step() until the job ended, which takes minutes here).
-    assert!(t.elapsed().as_secs() < 60);
-    for j in &h.state().jobs {
-        j.cancel();
-    }
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::CancelJobs(
+            tourwright::gui::action::JobKind::Optimize,
+        ));
     let t = std::time::Instant::now();
-    while !h.state().jobs.is_empty() && t.elapsed().as_secs() < 60 {
+    while !h.state().jobs.running.is_empty() && t.elapsed().as_secs() < 60 {
         h.step();
         std::thread::sleep(std::time::Duration::from_millis(20));
     }
-    assert!(h.state().jobs.is_empty(), "cancel did not stop the job");
+    assert!(
+        h.state().jobs.running.is_empty(),
+        "cancel did not stop the job"
+    );
+}
+
+#[test]
+fn a_job_for_one_design_is_not_applied_to_another() {
+    use tourwright::gui::action::{Action, JobKind, JobRequest, Pending};
+    let mut h = harness(0);
+    h.state_mut().apply(Action::StartJob(JobRequest::Optimize(
+        tourwright::search::optimize::OptimizeOptions {
+            max_evals: 2_000_000,
+            ..Default::default()
+        },
+        Default::default(),
+    )));
+    assert!(h.state().jobs.is_running(JobKind::Optimize));
+    // Open another sample: the running job is cancelled and its result must not land.
+    h.state_mut().apply(Action::Perform(Pending::Sample(1)));
+    let t = std::time::Instant::now();
+    while !h.state().jobs.running.is_empty() && t.elapsed().as_secs() < 60 {
+        h.step();
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+    assert!(h.state().jobs.running.is_empty());
+    assert!(h.state().jobs.optimum.is_none(), "a stale result was kept");
+    assert_eq!(h.state().jobs.dropped, 1);
+    assert_eq!(h.state().design().name, sample_design(1).0.name);
 }
 
 #[test]
 fn window_map_click_sets_the_leg_dates_as_one_undo_step() {
-    use tourwright::search::job::Progress;
+    use tourwright::search::Progress;
     use tourwright::search::window::{self, SecondAxis, WindowSpec};
     let mut h = harness(1);
     h.get_by_label("Window map").click();
     h.run_steps(2);
-    let d = h.state().doc.design.clone();
+    let d = h.state().design().clone();
     let (a, b) = (d.stops[0].epoch, d.stops[1].epoch);
     let spec = WindowSpec {
         from: d.stops[0].body.clone(),
@@ -217,15 +489,53 @@ fn window_map_click_sets_the_leg_dates_as_one_undo_step() {
         goal: d.arrival,
     };
     let map = window::compute(&d, &spec, &Progress::new()).unwrap();
-    h.state_mut().window.leg = Some(0);
-    h.state_mut().window_click(&map, 2, 7);
+    h.state_mut().views.window.leg = Some(0);
+    let action = {
+        let app = h.state();
+        let vc = tourwright::gui::app::ViewCtx {
+            design: app.design(),
+            tour: app.tour.as_ref(),
+            eval: &app.eval,
+            events: &app.events,
+            selected: app.selected,
+            dark: true,
+            revision: app.doc.revision(),
+            generation: app.doc.generation(),
+            in_gesture: false,
+            jobs: &app.jobs,
+        };
+        app.views.window.click(&vc, &map, 2, 7)
+    };
+    h.state_mut().apply(action);
     h.run_steps(2);
     let (t0, t1) = map.epochs(2, 7);
-    assert_eq!(h.state().doc.design.stops[0].epoch, t0);
-    assert_eq!(h.state().doc.design.stops[1].epoch, t1);
+    assert!((h.state().design().stops[0].epoch.tdb().0 - t0.0).abs() < 1e-3);
+    assert!((h.state().design().stops[1].epoch.tdb().0 - t1.0).abs() < 1e-3);
     assert!((h.state().eval.launch.c3 - map.cell(2, 7).c3).abs() < 1e-6);
     h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
     h.run_steps(2);
-    assert_eq!(h.state().doc.design.stops[0].epoch, a);
-    assert_eq!(h.state().doc.design.stops[1].epoch, b);
+    assert_eq!(h.state().design().stops[0].epoch, a);
+    assert_eq!(h.state().design().stops[1].epoch, b);
+}
+
+#[test]
+fn sun_view_orbits_are_not_rebuilt_while_a_swingby_is_dragged() {
+    let mut h = harness(0);
+    h.run_steps(2);
+    let builds = h.state().views.sun.orbit_builds;
+    assert!(builds >= 1);
+    for i in 0..5 {
+        h.state_mut()
+            .apply(tourwright::gui::action::Action::EditLive(
+                Edit::SetSwingbyMode {
+                    stop: 1,
+                    mode: SwingbyMode::Shaped {
+                        altitude_km: 15_000.0 + 500.0 * i as f64,
+                        aim_deg: -50.0,
+                    },
+                },
+            ));
+        h.run_steps(1);
+    }
+    assert_eq!(h.state().views.sun.orbit_builds, builds);
 }

@@ -1,121 +1,117 @@
 //! Direct vs assist: the best direct transfer in the launch period against the tour, as a table,
-//! a sentence and a small chart. Computed as a background job and kept for the design revision.
+//! a sentence and a small chart. Computed as a background job for the current design revision.
 
 use eframe::egui::{self, RichText};
 use egui_plot::{Bar, BarChart, Legend, Plot};
 
-use crate::search::Job;
-use crate::search::direct::{self, DirectOptions, Measure};
+use tourwright_mission::Objective;
+use tourwright_search::direct::{DirectComparison, DirectOptions};
 
-use super::app::{GuiJob, TourwrightApp};
+use super::action::{Action, Actions, JobKind, JobRequest, Pending};
+use super::app::ViewCtx;
 use super::style;
 
 /// Options shown in the view.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct DirectUi {
-    /// Measure chosen.
-    pub measure: Option<Measure>,
+pub struct DirectView {
+    /// Measure chosen (None: the design's default).
+    pub measure: Option<Objective>,
     /// Launch period half-width, days.
     pub window_days: f64,
+    /// The revision a job was last requested for (so a failed search is not restarted every
+    /// frame).
+    requested: Option<u64>,
 }
 
-impl Default for DirectUi {
+impl Default for DirectView {
     fn default() -> Self {
-        DirectUi {
+        DirectView {
             measure: None,
             window_days: 365.25,
+            requested: None,
         }
     }
 }
 
-impl TourwrightApp {
-    /// Start the comparison job for the current design.
-    pub fn start_direct(&mut self) {
-        let d = self.doc.design.clone();
-        let rev = self.doc.revision();
-        let mut o = DirectOptions::for_design(&d);
-        if let Some(m) = self.search.direct.measure {
-            o.measure = if m == Measure::DeliveredMass && d.launch_vehicle.is_none() {
-                Measure::TotalDv
+impl DirectView {
+    fn request(&self, vc: &ViewCtx<'_>) -> JobRequest {
+        let d = vc.design;
+        let mut o = DirectOptions::for_design(d);
+        if let Some(m) = self.measure {
+            o.measure = if m.needs_vehicle() && d.launch_vehicle.is_none() {
+                Objective::TotalDvWithLaunchVinf
             } else {
                 m
             };
         }
-        o.window_days = self.search.direct.window_days;
-        self.jobs.retain(|j| {
-            if let GuiJob::Direct(job, _) = j {
-                job.progress.cancel();
-                false
-            } else {
-                true
-            }
-        });
-        self.jobs.push(GuiJob::Direct(
-            Job::spawn("direct transfer search", move |_p| direct::compare(&d, &o)),
-            rev,
-        ));
+        o.window_days = self.window_days;
+        JobRequest::Direct(o)
     }
 
-    /// The Direct vs assist view.
-    pub fn direct_view(&mut self, ui: &mut egui::Ui) {
-        let rev = self.doc.revision();
-        let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Direct(..)));
-        let stale = self.direct.as_ref().is_none_or(|(_, r)| *r != rev);
-        if stale && !running && !self.doc.in_gesture() && self.eval.complete {
-            self.start_direct();
+    /// Draw the view.
+    pub fn ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>) -> Actions {
+        let mut out = Vec::new();
+        let running = vc.jobs.is_running(JobKind::Direct);
+        let current = vc.jobs.direct.as_ref();
+        let stale = current.is_none_or(|c| c.revision != vc.revision);
+        if stale
+            && !running
+            && !vc.in_gesture
+            && vc.eval.complete
+            && self.requested != Some(vc.revision)
+        {
+            self.requested = Some(vc.revision);
+            out.push(Action::StartJob(self.request(vc)));
         }
         ui.horizontal(|ui| {
             ui.label("Rank direct transfers by");
-            let mut m =
-                self.search
-                    .direct
-                    .measure
-                    .unwrap_or(if self.doc.design.launch_vehicle.is_some() {
-                        Measure::DeliveredMass
-                    } else {
-                        Measure::TotalDv
-                    });
+            let default = if vc.design.launch_vehicle.is_some() {
+                Objective::DeliveredMass
+            } else {
+                Objective::TotalDvWithLaunchVinf
+            };
+            let mut m = self.measure.unwrap_or(default);
             let before = m;
-            for x in [Measure::TotalDv, Measure::DeliveredMass, Measure::C3] {
+            for x in [
+                Objective::TotalDvWithLaunchVinf,
+                Objective::DeliveredMass,
+                Objective::LaunchC3,
+            ] {
                 ui.selectable_value(&mut m, x, x.label());
             }
-            let r = super::style::labelled(
+            let r = style::labelled(
                 ui,
                 "launch period ±",
-                egui::DragValue::new(&mut self.search.direct.window_days)
+                egui::DragValue::new(&mut self.window_days)
                     .range(10.0..=1500.0)
                     .suffix(" d"),
             );
             if m != before || r.drag_stopped() || r.lost_focus() {
-                self.search.direct.measure = Some(m);
-                self.direct = None;
+                self.measure = Some(m);
+                out.push(Action::StartJob(self.request(vc)));
             }
             if running {
                 ui.spinner();
                 ui.label("searching…");
+                if ui.small_button("cancel").clicked() {
+                    out.push(Action::CancelJobs(JobKind::Direct));
+                }
             }
         });
-        // Taken out of `self` for drawing (no per-frame copy of two evaluations), put back below.
-        let Some((c, r)) = self.direct.take() else {
+        let Some(c) = current else {
             ui.label("The comparison appears here once the search finishes.");
-            return;
+            return out;
         };
-        let open = direct_result(ui, &c, r != rev, &self.doc.design.sequence_label());
-        let direct = c.direct.clone();
-        self.direct = Some((c, r));
-        if open {
-            self.request(super::app::Pending::Replace(Box::new(direct)));
+        if direct_result(ui, &c.value, c.revision != vc.revision) {
+            out.push(Action::Request(Pending::Replace(Box::new(
+                c.value.direct.clone(),
+            ))));
         }
+        out
     }
 }
 
 /// The comparison table, sentence and chart; true when "open as a design" was clicked.
-fn direct_result(
-    ui: &mut egui::Ui,
-    c: &crate::search::direct::DirectComparison,
-    stale: bool,
-    tour_sequence: &str,
-) -> bool {
+fn direct_result(ui: &mut egui::Ui, c: &DirectComparison, stale: bool) -> bool {
     let mut open = false;
     if stale {
         ui.label(RichText::new("(for an earlier version of the design; updating)").weak());
@@ -131,20 +127,33 @@ fn direct_result(
             }
             ui.end_row();
             ui.label("sequence");
-            ui.label(tour_sequence);
-            ui.label(c.direct.sequence_label());
+            ui.label(c.tour.sequence_label());
+            ui.label(c.direct_tour.sequence_label());
             ui.label("");
             ui.end_row();
             ui.label("launch (UTC)");
-            ui.label(t.stops[0].epoch.to_date_utc());
-            ui.label(dd.stops[0].epoch.to_date_utc());
+            ui.label(
+                t.stops
+                    .first()
+                    .map(|s| s.epoch.to_date_utc())
+                    .unwrap_or_default(),
+            );
+            ui.label(
+                dd.stops
+                    .first()
+                    .map(|s| s.epoch.to_date_utc())
+                    .unwrap_or_default(),
+            );
             ui.label("");
             ui.end_row();
             let mut row = |name: &str, a: f64, b: f64, p: usize| {
                 ui.label(name);
-                ui.label(format!("{a:.p$}"));
-                ui.label(format!("{b:.p$}"));
-                ui.label(format!("{:+.p$}", a - b));
+                ui.label(style::fixed(a, p));
+                ui.label(style::fixed(b, p));
+                ui.label(match tourwright_mission::rules::shown(a - b) {
+                    Some(v) => format!("{v:+.p$}"),
+                    None => "—".into(),
+                });
                 ui.end_row();
             };
             row(
@@ -173,9 +182,10 @@ fn direct_result(
         });
     let h = &c.hohmann;
     ui.label(format!(
-            "Hohmann between circular coplanar orbits: v∞ {:.3} km/s out, {:.3} km/s in, {:.0} days (idealised reference).",
-            h.vinf_depart, h.vinf_arrive, h.tof_days
-        ));
+        "Hohmann between circular coplanar orbits: v∞ {:.3} km/s out, {:.3} km/s in, {:.0} days \
+         (idealised reference).",
+        h.vinf_depart, h.vinf_arrive, h.tof_days
+    ));
     if ui.button("Open the direct transfer as a design").clicked() {
         open = true;
     }

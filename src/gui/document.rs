@@ -1,89 +1,104 @@
-//! The open document: the design, its file, and undo/redo. Continuous gestures (dragging a
-//! periapsis, scrubbing a number) change the design live and become one undo step when they end.
+//! The open document: the design, its file, and undo/redo. Changes arrive as [`Edit`] values;
+//! each is one undo step, or part of a gesture (dragging a periapsis, scrubbing a number) that
+//! becomes one step when it ends.
+//!
+//! Every document has a generation (which opened document it is) and a revision (which state of
+//! it), both drawn from process-wide counters, so that no two documents or states share a number
+//! and a job's result can always be matched with the state it was computed for.
 
 use std::path::PathBuf;
+use std::sync::atomic::{AtomicU64, Ordering};
 
-use crate::mission::MissionDesign;
+use tourwright_mission::{Edit, EditError, MissionDesign};
 
 /// Undo history depth.
 const MAX_UNDO: usize = 200;
 
+static NEXT_NUMBER: AtomicU64 = AtomicU64::new(1);
+
+fn next_number() -> u64 {
+    NEXT_NUMBER.fetch_add(1, Ordering::Relaxed)
+}
+
 /// A design being edited.
 #[derive(Clone, Debug)]
 pub struct Document {
-    /// The design as it is now.
-    pub design: MissionDesign,
+    design: MissionDesign,
     /// Its file, once saved or opened.
     pub path: Option<PathBuf>,
-    saved: MissionDesign,
+    saved: Option<MissionDesign>,
     undo: Vec<MissionDesign>,
     redo: Vec<MissionDesign>,
     gesture_start: Option<MissionDesign>,
     revision: u64,
+    generation: u64,
 }
 
 impl Document {
     /// A document for a design read from `path` (or new when `None`).
     pub fn new(design: MissionDesign, path: Option<PathBuf>) -> Self {
         Document {
-            saved: if path.is_some() {
-                design.clone()
-            } else {
-                MissionDesign::new_blank()
-            },
+            saved: path.is_some().then(|| design.clone()),
             design,
             path,
             undo: Vec::new(),
             redo: Vec::new(),
             gesture_start: None,
-            revision: 1,
+            revision: next_number(),
+            generation: next_number(),
         }
     }
 
-    /// Changes whenever the design changes (evaluation caches key on it).
+    /// The design as it is now.
+    pub fn design(&self) -> &MissionDesign {
+        &self.design
+    }
+
+    /// Changes whenever the design changes; unique across documents.
     pub fn revision(&self) -> u64 {
         self.revision
     }
 
+    /// Which opened document this is; unique across documents.
+    pub fn generation(&self) -> u64 {
+        self.generation
+    }
+
     /// True when the design differs from the file on disk (or was never saved).
     pub fn is_dirty(&self) -> bool {
-        self.path.is_none() || self.design != self.saved
+        self.saved.as_ref() != Some(&self.design)
     }
 
     /// Record that the current design is what `path` now holds.
     pub fn mark_saved(&mut self, path: PathBuf) {
         self.path = Some(path);
-        self.saved = self.design.clone();
+        self.saved = Some(self.design.clone());
     }
 
-    /// A discrete edit: one undo step.
-    pub fn edit(&mut self, f: impl FnOnce(&mut MissionDesign)) {
+    /// A discrete edit: one undo step. On an error nothing changes.
+    pub fn apply(&mut self, edit: Edit) -> Result<(), EditError> {
         self.commit_gesture();
         let before = self.design.clone();
-        f(&mut self.design);
+        edit.apply(&mut self.design)?;
         if self.design != before {
             self.push_undo(before);
             self.redo.clear();
-            self.revision += 1;
+            self.revision = next_number();
         }
-    }
-
-    /// Replace the whole design as one undo step (apply an optimiser result, a window-map click).
-    pub fn replace(&mut self, d: MissionDesign) {
-        self.edit(|x| *x = d);
+        Ok(())
     }
 
     /// A live edit inside a gesture: applied now, undone as one step with the rest of the gesture.
-    pub fn edit_live(&mut self, f: impl FnOnce(&mut MissionDesign)) {
-        if self.gesture_start.is_none() {
-            self.gesture_start = Some(self.design.clone());
-        }
-        let before_rev = self.revision;
+    pub fn apply_live(&mut self, edit: Edit) -> Result<(), EditError> {
         let snapshot = self.design.clone();
-        f(&mut self.design);
+        edit.apply(&mut self.design)?;
         if self.design != snapshot {
-            self.revision = before_rev + 1;
+            if self.gesture_start.is_none() {
+                self.gesture_start = Some(snapshot);
+            }
+            self.revision = next_number();
         }
+        Ok(())
     }
 
     /// True while a gesture is open.
@@ -115,7 +130,7 @@ impl Document {
             Some(d) => {
                 let now = std::mem::replace(&mut self.design, d);
                 self.redo.push(now);
-                self.revision += 1;
+                self.revision = next_number();
                 true
             }
             None => false,
@@ -129,7 +144,7 @@ impl Document {
             Some(d) => {
                 let now = std::mem::replace(&mut self.design, d);
                 self.undo.push(now);
-                self.revision += 1;
+                self.revision = next_number();
                 true
             }
             None => false,
@@ -148,5 +163,33 @@ impl Document {
     /// True when there is something to redo.
     pub fn can_redo(&self) -> bool {
         !self.redo.is_empty()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn revisions_and_generations_are_unique_across_documents() {
+        let a = Document::new(MissionDesign::new_blank(), None);
+        let b = Document::new(MissionDesign::new_blank(), None);
+        assert_ne!(a.generation(), b.generation());
+        assert_ne!(a.revision(), b.revision());
+    }
+
+    #[test]
+    fn a_gesture_is_one_undo_step_and_a_refused_edit_changes_nothing() {
+        let mut d = Document::new(MissionDesign::new_blank(), None);
+        d.apply_live(Edit::SetName("a".into())).unwrap();
+        d.apply_live(Edit::SetName("ab".into())).unwrap();
+        d.commit_gesture();
+        assert!(d.undo());
+        assert_eq!(d.design().name, "Untitled tour");
+        assert!(!d.undo());
+        let rev = d.revision();
+        assert!(d.apply(Edit::RemoveStop(0)).is_err());
+        assert_eq!(d.revision(), rev);
+        assert_eq!(d.design().stops.len(), 2);
     }
 }

@@ -1,29 +1,46 @@
 //! Energy ladder: heliocentric specific energy along the tour (constant on each conic arc, with
 //! steps at the swing-bys and manoeuvres), the escape line at zero energy, heliocentric speed
-//! along the arcs, and v∞ at each stop.
+//! along the arcs against the local solar escape speed, and v∞ at each stop. Every number comes
+//! from the evaluation (energies) or the engine (escape speed).
 
 use eframe::egui::{self, RichText};
 use egui_plot::{
     HLine, Legend, Line, LineStyle, MarkerShape, Plot, PlotPoint, PlotPoints, Points, Text,
 };
 
-use crate::astro::constants::MU_SUN;
-use crate::mission::evaluate::StopKind;
+use tourwright_astro::constants::MU_SUN;
+use tourwright_astro::kepler::escape_speed;
+use tourwright_mission::evaluate::StopKind;
 
-use super::app::TourwrightApp;
+use super::action::Actions;
+use super::app::ViewCtx;
 use super::style;
 
-impl TourwrightApp {
-    /// The energy ladder view.
-    pub fn ladder_view(&mut self, ui: &mut egui::Ui) {
-        let e = &self.eval;
-        let d = &self.doc.design;
+/// The energy ladder (no state of its own).
+#[derive(Default)]
+pub struct LadderView;
+
+impl LadderView {
+    /// Draw the ladder.
+    pub fn ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>) -> Actions {
+        let e = vc.eval;
+        let Some(tour) = vc.tour else {
+            ui.label("The design cannot be evaluated; see the warnings.");
+            return Vec::new();
+        };
         if !e.complete {
             ui.label("The tour is incomplete; the ladder shows the legs that have a solution.");
         }
         let t0 = e.stops.first().map(|s| s.epoch.days()).unwrap_or(0.0);
         let h = (ui.available_height() - 40.0).max(200.0);
-        ui.label(RichText::new("Heliocentric specific energy (km²/s²) against days from launch; steps are swing-bys and manoeuvres.").weak());
+        ui.label(
+            RichText::new(
+                "Heliocentric specific energy (km²/s²) against days from launch; steps are \
+                 swing-bys and manoeuvres.",
+            )
+            .weak(),
+        );
+        let name = |k: usize| tour.stops[k].body.name.to_string();
         Plot::new("energy-ladder")
             .height(h * 0.58)
             .legend(Legend::default())
@@ -35,36 +52,34 @@ impl TourwrightApp {
                         .style(LineStyle::dashed_loose())
                         .color(style::SUN),
                 );
+                // Energy is constant on a two-body arc: the value leaving each stop.
                 for (k, leg) in e.legs.iter().enumerate() {
-                    let pts = &e.samples[leg.samples.clone()];
-                    if pts.is_empty() {
+                    if !leg.solved || k + 1 >= e.stops.len() {
                         continue;
                     }
-                    // Energy is constant on a two-body arc: draw it from the samples (it shows flat).
-                    let series: Vec<[f64; 2]> = pts
-                        .iter()
-                        .map(|s| {
-                            [
-                                s.t.days() - t0,
-                                0.5 * s.state.v.norm_squared() - MU_SUN / s.state.r.norm(),
-                            ]
-                        })
-                        .collect();
+                    let (a, b) = (&e.stops[k], &e.stops[k + 1]);
                     pl.line(
-                        Line::new(format!("leg {}", k + 1), PlotPoints::from(series))
-                            .color(style::leg_color(k))
-                            .width(3.0),
+                        Line::new(
+                            format!("leg {}", k + 1),
+                            PlotPoints::from(vec![
+                                [a.epoch.days() - t0, a.energy_after],
+                                [b.epoch.days() - t0, b.energy_before],
+                            ]),
+                        )
+                        .color(style::leg_color(k))
+                        .width(3.0),
                     );
                 }
                 for (k, s) in e.stops.iter().enumerate() {
                     let x = s.epoch.days() - t0;
+                    let col = style::body_color(&name(k));
                     if s.kind == StopKind::SwingBy {
                         pl.line(
                             Line::new(
                                 "",
                                 PlotPoints::from(vec![[x, s.energy_before], [x, s.energy_after]]),
                             )
-                            .color(style::body_color(&d.stops[k].body))
+                            .color(col)
                             .width(2.0)
                             .style(LineStyle::dotted_dense()),
                         );
@@ -75,21 +90,16 @@ impl TourwrightApp {
                         s.energy_after
                     };
                     pl.points(
-                        Points::new(d.stops[k].body.clone(), PlotPoints::from(vec![[x, y]]))
+                        Points::new(name(k), PlotPoints::from(vec![[x, y]]))
                             .shape(match s.kind {
                                 StopKind::Launch => MarkerShape::Up,
                                 StopKind::SwingBy => MarkerShape::Diamond,
                                 StopKind::Arrival => MarkerShape::Square,
                             })
                             .radius(6.0)
-                            .color(style::body_color(&d.stops[k].body)),
+                            .color(col),
                     );
-                    let vinf = if k == 0 {
-                        s.vinf_out.norm()
-                    } else {
-                        s.vinf_in.norm()
-                    };
-                    let mut label = format!("{} v∞ {:.2}", d.stops[k].body, vinf);
+                    let mut label = format!("{} v∞ {:.2}", name(k), s.vinf());
                     if s.kind == StopKind::SwingBy {
                         label.push_str(&format!("\nΔE {:+.1}", s.gain()));
                     }
@@ -122,7 +132,7 @@ impl TourwrightApp {
                 let escape: Vec<[f64; 2]> = e
                     .samples
                     .iter()
-                    .map(|s| [s.t.days() - t0, (2.0 * MU_SUN / s.state.r.norm()).sqrt()])
+                    .map(|s| [s.t.days() - t0, escape_speed(MU_SUN, s.state.r.norm())])
                     .collect();
                 pl.line(
                     Line::new("local solar escape speed", PlotPoints::from(escape))
@@ -132,17 +142,7 @@ impl TourwrightApp {
                 let vinf: Vec<[f64; 2]> = e
                     .stops
                     .iter()
-                    .enumerate()
-                    .map(|(k, s)| {
-                        [
-                            s.epoch.days() - t0,
-                            if k == 0 {
-                                s.vinf_out.norm()
-                            } else {
-                                s.vinf_in.norm()
-                            },
-                        ]
-                    })
+                    .map(|s| [s.epoch.days() - t0, s.vinf()])
                     .collect();
                 pl.points(
                     Points::new("v∞ at stops", PlotPoints::from(vinf))
@@ -150,5 +150,6 @@ impl TourwrightApp {
                         .radius(5.0),
                 );
             });
+        Vec::new()
     }
 }

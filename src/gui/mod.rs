@@ -1,14 +1,26 @@
 //! The workbench: an eframe app on the glow renderer (runs on software OpenGL, no GPU needed).
-//! State (document, undo, cached evaluation, jobs) lives in `app`; each view is its own module.
+//!
+//! The house: `app` holds the state and runs the frame; every panel and view is a component with
+//! its own state and a `ui(&mut self, ui, &ViewCtx) -> Actions` that reads the design and its
+//! evaluation and returns [`action::Action`]s; `menus` (menu bar and shortcuts), `dialogs`,
+//! `files` (open, save, export, samples) and `jobs` (background work keyed by document
+//! generation) are split by concern. The app applies the actions after the frame's panels are
+//! drawn and refreshes the evaluation once.
 
+pub mod action;
 pub mod app;
 pub mod compare;
+pub mod dialogs;
 pub mod document;
+pub mod files;
+pub mod jobs;
 pub mod ladder;
 pub mod lens;
+pub mod menus;
 pub mod panels;
-pub mod png;
 pub mod search_panel;
+pub mod shared;
+pub mod status;
 pub mod style;
 pub mod sun;
 pub mod windowmap;

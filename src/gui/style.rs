@@ -1,9 +1,9 @@
 //! Tourwright's own look: a palette for legs and bodies, readable on light and dark themes, and
 //! the stop symbols (launch: upward triangle, swing-by: diamond, arrival: square ring).
 
-use eframe::egui::{Color32, Painter, Pos2, Shape, Stroke, pos2};
+use eframe::egui::{Align2, Color32, FontId, Painter, Pos2, Rect, Shape, Stroke, pos2};
 
-use crate::mission::evaluate::StopKind;
+use tourwright_mission::evaluate::StopKind;
 
 /// Colours of successive legs (chosen for this program; distinguishable for common colour-vision
 /// deficiencies by lightness as well as hue).
@@ -48,10 +48,15 @@ pub fn canvas(dark: bool) -> Color32 {
 
 /// A number with `p` decimals, or an em dash when it is not finite or absurdly large.
 pub fn fixed(x: f64, p: usize) -> String {
-    if x.is_finite() && x.abs() < 1e15 {
-        format!("{x:.p$}")
-    } else {
-        "—".into()
+    fixed_opt(Some(x), p)
+}
+
+/// An optional number with `p` decimals; absent, not finite or absurd numbers show as an em dash
+/// (the mission crate's one rule of which numbers are shown).
+pub fn fixed_opt(x: Option<f64>, p: usize) -> String {
+    match x.and_then(tourwright_mission::rules::shown) {
+        Some(v) => format!("{v:.p$}"),
+        None => "—".into(),
     }
 }
 
@@ -157,4 +162,42 @@ pub fn labelled(
 ) -> eframe::egui::Response {
     let l = ui.label(label);
     ui.add(w).labelled_by(l.id)
+}
+
+/// A scale bar of a "nice" length in AU at the lower left of `rect`; `scale` is points per AU.
+pub fn scale_bar(painter: &Painter, rect: Rect, scale: f32, color: Color32) {
+    let nice = [0.05, 0.1, 0.2, 0.5, 1.0, 2.0, 5.0, 10.0, 20.0];
+    let au = nice
+        .iter()
+        .copied()
+        .find(|&a| a as f32 * scale >= 80.0)
+        .unwrap_or(50.0);
+    let y = rect.bottom() - 18.0;
+    let x0 = rect.left() + 16.0;
+    let x1 = x0 + au as f32 * scale;
+    painter.line_segment([pos2(x0, y), pos2(x1, y)], Stroke::new(2.0, color));
+    painter.line_segment(
+        [pos2(x0, y - 4.0), pos2(x0, y + 4.0)],
+        Stroke::new(1.5, color),
+    );
+    painter.line_segment(
+        [pos2(x1, y - 4.0), pos2(x1, y + 4.0)],
+        Stroke::new(1.5, color),
+    );
+    painter.text(
+        pos2(0.5 * (x0 + x1), y - 6.0),
+        Align2::CENTER_BOTTOM,
+        format!("{au} AU"),
+        FontId::proportional(12.0),
+        color,
+    );
+}
+
+/// Text colour that reads on the canvas.
+pub fn ink(dark: bool) -> Color32 {
+    if dark {
+        Color32::from_gray(215)
+    } else {
+        Color32::from_gray(40)
+    }
 }

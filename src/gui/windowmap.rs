@@ -2,29 +2,28 @@
 //! TOF), contour lines with labels, lines of constant TOF, the minimum marked, hover values, zoom
 //! and pan; a click sets the leg's dates in the design (one undo step).
 //!
-//! Contours: our own marching squares emitting segments straight into grid coordinates (no
-//! polygon assembly, unsolved cells left as holes); it is about forty lines and what the view
-//! needs, so no contouring crate is pulled in.
+//! Contour lines come from the `contour` crate (marching squares with linear smoothing, stitched
+//! into polylines). Unsolved cells are holes: the crate closes every ring along the grid's edge
+//! and around holes, so those artificial stretches are cut away before drawing.
 
 use eframe::egui::{
     self, Align2, Color32, FontId, Pos2, Rect, RichText, Sense, Stroke, TextureHandle, pos2, vec2,
 };
 
-use crate::astro::bodies::Planet;
-use crate::astro::time::Epoch;
-use crate::mission::MissionDesign;
-use crate::mission::design::LegOptions;
-use crate::search::Job;
-use crate::search::window::{self, Quantity, SecondAxis, WindowMap, WindowSpec};
+use tourwright_astro::time::{Epoch, Tdb};
+use tourwright_mission::design::LegOptions;
+use tourwright_mission::{Edit, MissionDesign};
+use tourwright_search::window::{Quantity, SecondAxis, WindowMap, WindowSpec};
 
-use super::app::{GuiJob, TourwrightApp};
+use super::action::{Action, Actions, JobKind, JobRequest};
+use super::app::ViewCtx;
 use super::style;
 
-/// Contour segments with their level.
-pub type LevelSegments = Vec<(f64, [f32; 4])>;
+/// Contour polylines (grid coordinates: cell centres at integers) with their level.
+pub type LevelLines = Vec<(f64, Vec<[f32; 2]>)>;
 
 /// Form values and the computed map.
-pub struct WindowViewState {
+pub struct WindowView {
     /// Departure body.
     pub from: String,
     /// Arrival body.
@@ -58,14 +57,14 @@ pub struct WindowViewState {
     /// Compute as soon as the view is shown (after the form was centred on a leg).
     pub auto: bool,
     texture: Option<(TextureHandle, Quantity, u64)>,
-    contours: Option<(Quantity, u64, LevelSegments)>,
+    contours: Option<(Quantity, u64, LevelLines)>,
     map_id: u64,
     stats: Option<(Quantity, u64, f64, f64, f64)>,
 }
 
-impl Default for WindowViewState {
+impl Default for WindowView {
     fn default() -> Self {
-        WindowViewState {
+        WindowView {
             from: "Earth".into(),
             to: "Mars".into(),
             depart: ("2033-01-01".into(), "2033-12-31".into()),
@@ -90,7 +89,7 @@ impl Default for WindowViewState {
     }
 }
 
-impl WindowViewState {
+impl WindowView {
     /// Show a newly computed map.
     pub fn set_map(&mut self, m: WindowMap) {
         self.map = Some(std::sync::Arc::new(m));
@@ -125,62 +124,78 @@ impl WindowViewState {
     }
 }
 
-/// Marching squares over a grid of `nx × ny` values (row-major by j); `None` marks holes.
-/// Returns segments [x0, y0, x1, y1] in grid coordinates.
-pub fn contour_segments(
+/// Contour polylines of a grid of `nx × ny` values (row-major by j; `None` marks holes) at
+/// `levels`, through the `contour` crate. Returns polylines in grid coordinates (cell centres at
+/// integers), with the crate's closing stretches along the grid edge and around holes removed.
+pub fn contour_lines(
     nx: usize,
     ny: usize,
     value: impl Fn(usize, usize) -> Option<f64>,
-    level: f64,
-    out: &mut Vec<[f32; 4]>,
-) {
-    for j in 0..ny.saturating_sub(1) {
-        for i in 0..nx.saturating_sub(1) {
-            let (Some(a), Some(b), Some(c), Some(d)) = (
-                value(i, j),
-                value(i + 1, j),
-                value(i + 1, j + 1),
-                value(i, j + 1),
-            ) else {
-                continue;
-            };
-            // Corners counter-clockwise: a (i,j), b (i+1,j), c (i+1,j+1), d (i,j+1).
-            let idx = (a > level) as u8
-                | ((b > level) as u8) << 1
-                | ((c > level) as u8) << 2
-                | ((d > level) as u8) << 3;
-            if idx == 0 || idx == 15 {
-                continue;
-            }
-            let t = |p: f64, q: f64| ((level - p) / (q - p)) as f32;
-            let (fi, fj) = (i as f32, j as f32);
-            let e_ab = [fi + t(a, b), fj];
-            let e_bc = [fi + 1.0, fj + t(b, c)];
-            let e_dc = [fi + t(d, c), fj + 1.0];
-            let e_ad = [fi, fj + t(a, d)];
-            let mut seg = |p: [f32; 2], q: [f32; 2]| out.push([p[0], p[1], q[0], q[1]]);
-            match idx {
-                1 | 14 => seg(e_ab, e_ad),
-                2 | 13 => seg(e_ab, e_bc),
-                3 | 12 => seg(e_ad, e_bc),
-                4 | 11 => seg(e_bc, e_dc),
-                6 | 9 => seg(e_ab, e_dc),
-                7 | 8 => seg(e_ad, e_dc),
-                5 | 10 => {
-                    // Saddle: decide by the centre value.
-                    let centre = 0.25 * (a + b + c + d) > level;
-                    if (idx == 5) == centre {
-                        seg(e_ab, e_bc);
-                        seg(e_ad, e_dc);
-                    } else {
-                        seg(e_ab, e_ad);
-                        seg(e_bc, e_dc);
-                    }
-                }
-                _ => {}
+    levels: &[f64],
+) -> LevelLines {
+    if nx < 2 || ny < 2 || levels.is_empty() {
+        return Vec::new();
+    }
+    let mut values = vec![f64::NAN; nx * ny];
+    let mut hole = vec![false; nx * ny];
+    for j in 0..ny {
+        for i in 0..nx {
+            match value(i, j) {
+                Some(v) if v.is_finite() => values[j * nx + i] = v,
+                _ => hole[j * nx + i] = true,
             }
         }
     }
+    // Holes read as "below every level" in the crate; they are cut out below.
+    let fill = levels.iter().copied().fold(f64::INFINITY, f64::min) - 1.0;
+    for (v, h) in values.iter_mut().zip(&hole) {
+        if *h {
+            *v = fill;
+        }
+    }
+    let Ok(lines) = contour::ContourBuilder::new(nx, ny, true).lines(&values, levels) else {
+        return Vec::new();
+    };
+    let is_hole = |i: f64, j: f64| -> bool {
+        let (i, j) = (i.round(), j.round());
+        i < 0.0
+            || j < 0.0
+            || i as usize >= nx
+            || j as usize >= ny
+            || hole[j as usize * nx + i as usize]
+    };
+    // A vertex in the crate's coordinates lies between two cell centres (x−0.5, y−0.5 has one
+    // half-integer coordinate); it is real when both cells exist and hold values.
+    let real = |x: f64, y: f64| -> bool {
+        let (gx, gy) = (x - 0.5, y - 0.5);
+        if !(gx.is_finite() && gy.is_finite()) || gx <= -0.5 || gy <= -0.5 {
+            return false;
+        }
+        if gx >= nx as f64 - 0.5 || gy >= ny as f64 - 0.5 {
+            return false;
+        }
+        !(is_hole(gx.floor(), gy.floor()) || is_hole(gx.ceil(), gy.ceil()))
+    };
+    let mut out = Vec::new();
+    for l in lines {
+        let (geom, level) = l.into_inner();
+        for ls in geom.0 {
+            let mut run: Vec<[f32; 2]> = Vec::new();
+            for c in ls.0 {
+                if real(c.x, c.y) {
+                    run.push([(c.x - 0.5) as f32, (c.y - 0.5) as f32]);
+                } else if run.len() >= 2 {
+                    out.push((level, std::mem::take(&mut run)));
+                } else {
+                    run.clear();
+                }
+            }
+            if run.len() >= 2 {
+                out.push((level, run));
+            }
+        }
+    }
+    out
 }
 
 /// "Nice" contour levels between `lo` and `hi` (about `n` of them).
@@ -204,13 +219,14 @@ pub fn nice_levels(lo: f64, hi: f64, n: usize) -> Vec<f64> {
     v
 }
 
-impl TourwrightApp {
-    fn start_window(&mut self) {
-        let w = &self.window;
+impl WindowView {
+    /// The action that computes the map the form describes (or the form's error).
+    fn start(&mut self, vc: &ViewCtx<'_>) -> Option<Action> {
+        let w = &*self;
         let parse = |s: &str| Epoch::parse(s).map_err(|e| e.to_string());
         let spec = (|| -> Result<WindowSpec, String> {
             let depart = (parse(&w.depart.0)?, parse(&w.depart.1)?);
-            if depart.1.tdb_s <= depart.0.tdb_s {
+            if depart.1.tdb().0 <= depart.0.tdb().0 {
                 return Err("departure range: the end must be after the start".into());
             }
             let second = if w.use_tof {
@@ -220,7 +236,7 @@ impl TourwrightApp {
                 SecondAxis::Tof(w.tof.0, w.tof.1)
             } else {
                 let a = (parse(&w.arrive.0)?, parse(&w.arrive.1)?);
-                if a.1.tdb_s <= a.0.tdb_s {
+                if a.1.tdb().0 <= a.0.tdb().0 {
                     return Err("arrival range: the end must be after the start".into());
                 }
                 SecondAxis::Arrival(a.0, a.1)
@@ -237,35 +253,30 @@ impl TourwrightApp {
                     branch: w.branch,
                     ..Default::default()
                 },
-                goal: self.doc.design.arrival,
+                goal: vc.design.arrival,
             })
         })();
         match spec {
-            Err(e) => self.window.error = Some(e),
+            Err(e) => {
+                self.error = Some(e);
+                None
+            }
             Ok(spec) => {
-                self.window.error = None;
-                let base = self.doc.design.clone();
-                self.jobs.retain(|j| !matches!(j, GuiJob::Window(_)));
-                self.jobs
-                    .push(GuiJob::Window(Job::spawn("window map", move |p| {
-                        window::compute(&base, &spec, &p)
-                    })));
+                self.error = None;
+                Some(Action::StartJob(JobRequest::Window(spec)))
             }
         }
     }
 
-    /// The window-map view.
-    pub fn window_view(&mut self, ui: &mut egui::Ui) {
-        let dark = self.settings.dark;
-        let names: Vec<String> = Planet::ALL
-            .iter()
-            .map(|p| p.name().to_string())
-            .chain(self.doc.design.user_bodies.iter().map(|u| u.name.clone()))
-            .collect();
-        let n_legs = self.doc.design.stops.len().saturating_sub(1);
+    /// Draw the view.
+    pub fn ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>) -> Actions {
+        let mut out = Vec::new();
+        let dark = vc.dark;
+        let names = vc.design.body_names();
+        let n_legs = vc.design.stops.len().saturating_sub(1);
         ui.horizontal_wrapped(|ui| {
             let leg_lab = ui.label("Leg");
-            let mut leg = self.window.leg;
+            let mut leg = self.leg;
             egui::ComboBox::from_id_salt("wm-leg")
                 .selected_text(leg.map(|k| format!("{}", k + 1)).unwrap_or("free".into()))
                 .show_ui(ui, |ui| {
@@ -277,26 +288,26 @@ impl TourwrightApp {
                             format!(
                                 "{} ({} to {})",
                                 k + 1,
-                                self.doc.design.stops[k].body,
-                                self.doc.design.stops[k + 1].body
+                                vc.design.stops[k].body,
+                                vc.design.stops[k + 1].body
                             ),
                         );
                     }
                 })
                 .response
                 .labelled_by(leg_lab.id);
-            if leg != self.window.leg {
+            if leg != self.leg {
                 match leg {
-                    Some(k) => self.window.reset_from_design(&self.doc.design, k),
-                    None => self.window.leg = None,
+                    Some(k) => self.reset_from_design(vc.design, k),
+                    None => self.leg = None,
                 }
             }
             for (label, v) in [("from", 0), ("to", 1)] {
                 let lab = ui.label(label);
                 let cur = if v == 0 {
-                    self.window.from.clone()
+                    self.from.clone()
                 } else {
-                    self.window.to.clone()
+                    self.to.clone()
                 };
                 let mut sel = cur.clone();
                 egui::ComboBox::from_id_salt(("wm-body", v))
@@ -310,16 +321,16 @@ impl TourwrightApp {
                     .labelled_by(lab.id);
                 if sel != cur {
                     if v == 0 {
-                        self.window.from = sel
+                        self.from = sel
                     } else {
-                        self.window.to = sel
+                        self.to = sel
                     }
-                    self.window.leg = None;
+                    self.leg = None;
                 }
             }
         });
         ui.horizontal_wrapped(|ui| {
-            let w = &mut self.window;
+            let w = &mut *self;
             style::labelled(
                 ui,
                 "depart",
@@ -358,12 +369,12 @@ impl TourwrightApp {
                     .on_hover_text("Izzo's left branch: the smaller x (higher energy)");
                 ui.selectable_value(&mut w.branch, Branch::Right, "right branch");
             }
-            let running = self.jobs.iter().any(|j| matches!(j, GuiJob::Window(_)));
+            let running = vc.jobs.is_running(JobKind::Window);
             if ui
                 .add_enabled(!running, egui::Button::new("Compute"))
                 .clicked()
             {
-                self.start_window();
+                out.extend(w.start(vc));
             }
             if running {
                 ui.spinner();
@@ -372,37 +383,35 @@ impl TourwrightApp {
         ui.horizontal(|ui| {
             ui.label("show");
             for q in Quantity::ALL {
-                ui.selectable_value(&mut self.window.quantity, q, q.label());
+                ui.selectable_value(&mut self.quantity, q, q.label());
             }
         });
-        if self.window.auto
-            && self.window.map.is_none()
-            && !self.jobs.iter().any(|j| matches!(j, GuiJob::Window(_)))
-        {
-            self.window.auto = false;
-            self.start_window();
+        if self.auto && self.map.is_none() && !vc.jobs.is_running(JobKind::Window) {
+            self.auto = false;
+            out.extend(self.start(vc));
         }
-        if let Some(e) = &self.window.error {
+        if let Some(e) = &self.error {
             ui.label(RichText::new(format!("! {e}")).color(style::error_color(dark)));
         }
-        if self.window.map.is_none() {
+        if self.map.is_none() {
             ui.label("Press Compute to map the launch window (runs in the background; the bar below shows progress).");
-            return;
+            return out;
         }
-        self.window_canvas(ui);
+        self.canvas(ui, vc, &mut out);
+        out
     }
 
-    fn window_canvas(&mut self, ui: &mut egui::Ui) {
-        let dark = self.settings.dark;
-        let q = self.window.quantity;
+    fn canvas(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
+        let dark = vc.dark;
+        let q = self.quantity;
         // Shared, not copied: the map can hold a million cells.
-        let map = self.window.map.clone().expect("checked");
+        let map = self.map.clone().expect("checked");
         let (nx, ny) = (map.spec.nx, map.spec.ny);
-        let id = self.window.map_id;
+        let id = self.map_id;
         // Colour range from the minimum to a cap; the percentiles are computed once per map and
         // quantity, not every frame. The cap defaults to min + 3 × (30th percentile − min): the
         // 180° ridge and the far corners would otherwise squash the useful part of the scale.
-        if self.window.stats.is_none_or(|s| s.0 != q || s.1 != id) {
+        if self.stats.is_none_or(|s| s.0 != q || s.1 != id) {
             let mut vals: Vec<f64> = map
                 .cells
                 .iter()
@@ -410,7 +419,7 @@ impl TourwrightApp {
                 .map(|c| q.of(c))
                 .collect();
             vals.sort_by(f64::total_cmp);
-            self.window.stats = vals.first().map(|&lo| {
+            self.stats = vals.first().map(|&lo| {
                 let hi = vals[vals.len() - 1];
                 let p30 = vals[vals.len() * 3 / 10];
                 (
@@ -422,11 +431,11 @@ impl TourwrightApp {
                 )
             });
         }
-        let Some((_, _, lo, auto_cap, hi)) = self.window.stats else {
+        let Some((_, _, lo, auto_cap, hi)) = self.stats else {
             ui.label("No cell has a solution for these dates.");
             return;
         };
-        let mut cap = self.window.cap.unwrap_or(auto_cap);
+        let mut cap = self.cap.unwrap_or(auto_cap);
         ui.horizontal(|ui| {
             if style::labelled(
                 ui,
@@ -437,14 +446,14 @@ impl TourwrightApp {
             )
             .changed()
             {
-                self.window.cap = Some(cap);
-                self.window.texture = None;
-                self.window.contours = None;
+                self.cap = Some(cap);
+                self.texture = None;
+                self.contours = None;
             }
             if ui.small_button("auto").clicked() {
-                self.window.cap = None;
-                self.window.texture = None;
-                self.window.contours = None;
+                self.cap = None;
+                self.texture = None;
+                self.contours = None;
             }
             if let Some((i, j, v)) = map.minimum(q) {
                 let (a, b) = map.epochs(i, j);
@@ -458,7 +467,6 @@ impl TourwrightApp {
         });
         // Texture.
         let need_tex = self
-            .window
             .texture
             .as_ref()
             .is_none_or(|(_, tq, tid)| *tq != q || *tid != id);
@@ -490,30 +498,23 @@ impl TourwrightApp {
             let tex = ui
                 .ctx()
                 .load_texture("window-map", img, egui::TextureOptions::NEAREST);
-            self.window.texture = Some((tex, q, id));
+            self.texture = Some((tex, q, id));
         }
         let need_contours = self
-            .window
             .contours
             .as_ref()
             .is_none_or(|(cq, cid, _)| *cq != q || *cid != id);
         if need_contours {
-            let mut out = Vec::new();
-            for lv in nice_levels(lo, cap, 9) {
-                let mut segs = Vec::new();
-                contour_segments(
-                    nx,
-                    ny,
-                    |i, j| {
-                        let c = map.cell(i, j);
-                        c.solved.then(|| q.of(c))
-                    },
-                    lv,
-                    &mut segs,
-                );
-                out.extend(segs.into_iter().map(|s| (lv, s)));
-            }
-            self.window.contours = Some((q, id, out));
+            let lines = contour_lines(
+                nx,
+                ny,
+                |i, j| {
+                    let c = map.cell(i, j);
+                    c.solved.then(|| q.of(c))
+                },
+                &nice_levels(lo, cap, 9),
+            );
+            self.contours = Some((q, id, lines));
         }
         // Canvas with margins for axes.
         let size = ui.available_size();
@@ -521,7 +522,6 @@ impl TourwrightApp {
         let full = resp.rect;
         let plot = Rect::from_min_max(full.min + vec2(70.0, 10.0), full.max - vec2(80.0, 40.0));
         let view = self
-            .window
             .view
             .unwrap_or(Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)));
         // Grid coords (i, j) -> normalised (u, v) -> screen.
@@ -539,7 +539,7 @@ impl TourwrightApp {
             (u, v)
         };
         let p2 = painter.with_clip_rect(plot);
-        if let Some((tex, ..)) = &self.window.texture {
+        if let Some((tex, ..)) = &self.texture {
             // The texture spans cell centres 0..n-1 over half a cell beyond.
             let a = to_screen(-0.5, -0.5);
             let b = to_screen((nx - 1) as f32 + 0.5, (ny - 1) as f32 + 0.5);
@@ -555,41 +555,34 @@ impl TourwrightApp {
         } else {
             Color32::from_rgba_unmultiplied(0, 0, 0, 160)
         };
-        if let Some((_, _, segs)) = &self.window.contours {
-            for (_, s) in segs {
-                p2.line_segment(
-                    [to_screen(s[0], s[1]), to_screen(s[2], s[3])],
-                    Stroke::new(1.0, line_c),
-                );
+        if let Some((_, _, lines)) = &self.contours {
+            for (_, l) in lines {
+                let pts: Vec<Pos2> = l.iter().map(|p| to_screen(p[0], p[1])).collect();
+                p2.add(egui::Shape::line(pts, Stroke::new(1.0, line_c)));
             }
-            // One label per level: from the middle of the level's segments outwards, the first
-            // visible spot at least 40 points away from labels already placed.
+            // One label per level: along each line from its middle outwards, the first visible
+            // spot at least 40 points away from labels already placed.
             let mut best: Vec<(f64, f32, Pos2)> = Vec::new();
-            let mut start = 0;
-            while start < segs.len() {
-                let lv = segs[start].0;
-                let end = segs[start..]
-                    .iter()
-                    .position(|s| s.0 != lv)
-                    .map_or(segs.len(), |n| start + n);
-                let mid = (start + end) / 2;
-                let order = (0..end - start).map(|k| {
+            for (lv, l) in lines {
+                if best.iter().any(|b| b.0 == *lv) {
+                    continue;
+                }
+                let mid = l.len() / 2;
+                let order = (0..l.len()).map(|k| {
                     if k % 2 == 0 {
                         mid + k / 2
                     } else {
                         mid.saturating_sub(k / 2 + 1)
                     }
                 });
-                for idx in order.filter(|i| (start..end).contains(i)) {
-                    let s = segs[idx].1;
-                    let a = to_screen(s[0], s[1]);
+                for idx in order.filter(|i| *i < l.len()) {
+                    let a = to_screen(l[idx][0], l[idx][1]);
                     if plot.shrink(16.0).contains(a) && best.iter().all(|b| b.2.distance(a) > 40.0)
                     {
-                        best.push((lv, 0.0, a));
+                        best.push((*lv, 0.0, a));
                         break;
                     }
                 }
-                start = end;
             }
             let bg = if dark {
                 Color32::from_rgba_unmultiplied(0, 0, 0, 150)
@@ -663,11 +656,11 @@ impl TourwrightApp {
             );
         }
         // The design's own leg dates.
-        if let Some(k) = self.window.leg {
-            if k + 1 < self.doc.design.stops.len() {
+        if let Some(k) = self.leg {
+            if k + 1 < vc.design.stops.len() {
                 let (a, b) = (
-                    self.doc.design.stops[k].epoch,
-                    self.doc.design.stops[k + 1].epoch,
+                    vc.design.stops[k].epoch.tdb(),
+                    vc.design.stops[k + 1].epoch.tdb(),
                 );
                 let gi = ((a.days() - map.depart[0].days())
                     / (map.depart[nx - 1].days() - map.depart[0].days())
@@ -682,7 +675,7 @@ impl TourwrightApp {
                 style::stop_marker(
                     &p2,
                     p,
-                    crate::mission::evaluate::StopKind::SwingBy,
+                    tourwright_mission::evaluate::StopKind::SwingBy,
                     style::leg_color(k),
                     7.0,
                     Color32::WHITE,
@@ -711,7 +704,7 @@ impl TourwrightApp {
             let j = (v * (ny - 1) as f32).round().clamp(0.0, (ny - 1) as f32) as usize;
             let y = plot.bottom() - f * plot.height();
             let label = match map.spec.second {
-                SecondAxis::Arrival(..) => Epoch::from_mjd2000(map.second[j]).to_date_utc(),
+                SecondAxis::Arrival(..) => Tdb::from_mjd2000(map.second[j]).to_date_utc(),
                 SecondAxis::Tof(..) => format!("{:.0} d", map.second[j]),
             };
             painter.text(
@@ -767,7 +760,7 @@ impl TourwrightApp {
                         pos2(u - (u - view.min.x) * f, v - (v - view.min.y) * f),
                         pos2(u + (view.max.x - u) * f, v + (view.max.y - v) * f),
                     );
-                    self.window.view = Some(nv);
+                    self.view = Some(nv);
                 }
             }
         }
@@ -777,10 +770,10 @@ impl TourwrightApp {
                 -dd.x / plot.width() * view.width(),
                 dd.y / plot.height() * view.height(),
             ));
-            self.window.view = Some(nv);
+            self.view = Some(nv);
         }
         if resp.double_clicked() {
-            self.window.view = None;
+            self.view = None;
         }
         let cell_at = |p: Pos2| -> Option<(usize, usize)> {
             if !plot.contains(p) {
@@ -821,53 +814,36 @@ impl TourwrightApp {
             });
         }
         if let Some((i, j)) = clicked {
-            self.window_click(&map, i, j);
+            out.push(self.click(vc, &map, i, j));
         }
     }
 
-    /// Set the chosen leg's dates from cell (i, j) of a map (one undo step), if the bodies match.
-    pub fn window_click(&mut self, map: &WindowMap, i: usize, j: usize) {
+    /// The action a click on cell (i, j) of a map stands for: set the chosen leg's dates (one
+    /// undo step) when the map's bodies are those of the leg, else a message saying why not.
+    pub fn click(&self, vc: &ViewCtx<'_>, map: &WindowMap, i: usize, j: usize) -> Action {
         let (a, b) = map.epochs(i, j);
-        let Some(k) = self.window.leg else {
-            self.status = Some((
+        let Some(k) = self.leg else {
+            return Action::Status(
                 "choose a leg of the design to set its dates from the map".into(),
                 true,
-            ));
-            return;
+            );
         };
-        let d = &self.doc.design;
+        let d = vc.design;
         if k + 1 >= d.stops.len()
             || !d.stops[k].body.eq_ignore_ascii_case(&map.spec.from)
             || !d.stops[k + 1].body.eq_ignore_ascii_case(&map.spec.to)
         {
-            self.status = Some((
+            return Action::Status(
                 "the map's bodies are not those of the chosen leg".into(),
                 true,
-            ));
-            return;
+            );
         }
-        let prev_ok = k == 0 || d.stops[k - 1].epoch.tdb_s < a.tdb_s;
-        let next_ok = k + 2 >= d.stops.len() || d.stops[k + 2].epoch.tdb_s > b.tdb_s;
-        if !(prev_ok && next_ok) {
-            self.status = Some((
-                "those dates would put the stops out of time order".into(),
-                true,
-            ));
-            return;
-        }
-        self.doc.edit(|d| {
-            d.stops[k].epoch = a;
-            d.stops[k + 1].epoch = b;
-        });
-        self.status = Some((
-            format!(
-                "leg {} now departs {} and arrives {}",
-                k + 1,
-                a.to_date_utc(),
-                b.to_date_utc()
-            ),
-            false,
-        ));
+        let scale = |s: usize| d.stops[s].epoch.scale();
+        Action::Edit(Edit::SetLegEpochs {
+            leg: k,
+            depart: Epoch::from_tdb(a, scale(k)),
+            arrive: Epoch::from_tdb(b, scale(k + 1)),
+        })
     }
 }
 
@@ -876,26 +852,32 @@ mod tests {
     use super::*;
 
     #[test]
-    fn marching_squares_finds_a_circle() {
+    fn contour_lines_find_a_circle_and_skip_holes() {
         // f = x² + y² on a grid; the level r² contour has points at distance r from the centre.
         let n = 41;
         let f = |i: usize, j: usize| {
             let (x, y) = (i as f64 - 20.0, j as f64 - 20.0);
             Some(x * x + y * y)
         };
-        let mut segs = Vec::new();
-        contour_segments(n, n, f, 100.0, &mut segs);
-        assert!(segs.len() > 40);
-        for s in &segs {
-            for (x, y) in [(s[0], s[1]), (s[2], s[3])] {
-                let r = ((x - 20.0).powi(2) + (y - 20.0).powi(2)).sqrt();
-                assert!((r - 10.0).abs() < 0.3, "{r}");
+        let lines = contour_lines(n, n, f, &[100.0]);
+        let pts: Vec<[f32; 2]> = lines.iter().flat_map(|l| l.1.clone()).collect();
+        assert!(pts.len() > 40);
+        for p in &pts {
+            let r = ((p[0] - 20.0).powi(2) + (p[1] - 20.0).powi(2)).sqrt();
+            assert!((r - 10.0).abs() < 0.3, "{r}");
+        }
+        // A plane f = i crossed by a level: the line runs at i = 2.5 and never along the grid's
+        // edge; the hole (j = 5) cuts it in two.
+        let g = |i: usize, j: usize| (j != 5).then_some(i as f64);
+        let lines = contour_lines(8, 10, g, &[2.5]);
+        assert_eq!(lines.len(), 2, "{lines:?}");
+        for (_, l) in &lines {
+            for p in l {
+                assert!((p[0] - 2.5).abs() < 1e-6, "{p:?}");
+                assert!((p[1] - 5.0).abs() >= 0.5, "{p:?}");
             }
         }
-        // Holes are skipped.
-        let mut none = Vec::new();
-        contour_segments(n, n, |_, _| None, 1.0, &mut none);
-        assert!(none.is_empty());
+        assert!(contour_lines(8, 8, |_, _| None, &[1.0]).is_empty());
     }
 
     #[test]

@@ -14,7 +14,7 @@ use serde::{Deserialize, Serialize};
 use crate::bodies::Planet;
 use crate::constants::{AU_KM, DAY_S, DEG, JULIAN_CENTURY_DAYS, MU_SUN};
 use crate::kepler::{self, Elements};
-use crate::time::Epoch;
+use crate::time::{Epoch, Tdb};
 use crate::{State, Vec3};
 
 /// Why a state could not be given.
@@ -38,9 +38,9 @@ pub enum EphemerisError {
 /// A source of heliocentric ecliptic J2000 states.
 pub trait Ephemeris {
     /// Position (km) and velocity (km/s) at `t`.
-    fn state(&self, t: Epoch) -> Result<State, EphemerisError>;
-    /// First and last epochs this source is valid for.
-    fn valid_range(&self) -> (Epoch, Epoch);
+    fn state(&self, t: Tdb) -> Result<State, EphemerisError>;
+    /// First and last instants this source is valid for.
+    fn valid_range(&self) -> (Tdb, Tdb);
 }
 
 /// One row of the mean-element table: values at J2000 and rates per Julian century.
@@ -221,12 +221,14 @@ const STANDISH_1800_2050: [MeanElements; 9] = [
     },
 ];
 
-/// Validity of the 1800-2050 table: 1800-01-01 to 2050-12-31 (TDB, to the day).
-pub fn mean_element_range() -> (Epoch, Epoch) {
-    // JD 2378496.5 = 1800-01-01 0h; JD 2470171.5 = 2051-01-01 0h.
+/// Validity of the 1800-2050 table: from 1800-01-01 00:00 to the end of 2050-12-31 UTC, inclusive
+/// (the end is 2051-01-01 00:00:00 UTC, which is 69.184 s later in TDB, rounded up to 70 s).
+pub fn mean_element_range() -> (Tdb, Tdb) {
+    // JD 2378496.5 = 1800-01-01 0h (MJD −21504); JD 2470172.5 = 2051-01-01 0h (MJD 70172), both
+    // from erfa.cal2jd (see tests/astro_reference_tables.rs).
     (
-        Epoch::from_jd_tdb(2_378_496.5),
-        Epoch::from_jd_tdb(2_470_171.5),
+        Tdb::from_jd(2_378_496.5),
+        Tdb::from_jd(2_470_172.5).plus_days(70.0 / 86_400.0),
     )
 }
 
@@ -238,8 +240,8 @@ impl MeanElements {
 
     /// State at `t` without the range check (used for drawing orbits just outside the range).
     #[inline]
-    pub fn state_unchecked(&self, t: Epoch) -> State {
-        let tc = t.tdb_s / (JULIAN_CENTURY_DAYS * DAY_S);
+    pub fn state_unchecked(&self, t: Tdb) -> State {
+        let tc = t.0 / (JULIAN_CENTURY_DAYS * DAY_S);
         let el = |k: usize| self.at_j2000[k] + self.per_century[k] * tc;
         let a = el(0) * AU_KM;
         let e = el(1);
@@ -279,10 +281,11 @@ impl MeanElements {
     }
 }
 
-fn check_range(t: Epoch, range: (Epoch, Epoch)) -> Result<(), EphemerisError> {
-    if t.tdb_s < range.0.tdb_s || t.tdb_s > range.1.tdb_s || !t.tdb_s.is_finite() {
+/// An error unless `t` lies within `range` (inclusive).
+pub fn check_range(t: Tdb, range: (Tdb, Tdb)) -> Result<(), EphemerisError> {
+    if !(t.0 >= range.0.0 && t.0 <= range.1.0) {
         return Err(EphemerisError::OutOfRange {
-            epoch: if t.tdb_s.is_finite() {
+            epoch: if t.0.is_finite() {
                 t.to_date_utc()
             } else {
                 "not a number".into()
@@ -295,21 +298,80 @@ fn check_range(t: Epoch, range: (Epoch, Epoch)) -> Result<(), EphemerisError> {
 }
 
 impl Ephemeris for MeanElements {
-    fn state(&self, t: Epoch) -> Result<State, EphemerisError> {
+    fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
         check_range(t, self.valid_range())?;
         Ok(self.state_unchecked(t))
     }
-    fn valid_range(&self) -> (Epoch, Epoch) {
+    fn valid_range(&self) -> (Tdb, Tdb) {
         mean_element_range()
     }
 }
 
 impl Ephemeris for Planet {
-    fn state(&self, t: Epoch) -> Result<State, EphemerisError> {
+    fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
         MeanElements::of(*self).state(t)
     }
-    fn valid_range(&self) -> (Epoch, Epoch) {
+    fn valid_range(&self) -> (Tdb, Tdb) {
         mean_element_range()
+    }
+}
+
+/// The ephemeris of one catalogue planet under a chosen model.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum PlanetEphemeris {
+    /// A row of the Standish 1800-2050 mean-element table.
+    Standish(&'static MeanElements),
+}
+
+impl Ephemeris for PlanetEphemeris {
+    #[inline]
+    fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
+        match self {
+            PlanetEphemeris::Standish(m) => m.state(t),
+        }
+    }
+    fn valid_range(&self) -> (Tdb, Tdb) {
+        match self {
+            PlanetEphemeris::Standish(m) => m.valid_range(),
+        }
+    }
+}
+
+/// A selectable model of the planets: where they are and the constants that go with them.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub enum EphemerisModel {
+    /// JPL approximate Keplerian elements, 1800-2050 (Standish), with the catalogue's constants.
+    #[default]
+    MeanElements,
+}
+
+impl EphemerisModel {
+    /// Short name shown in the status bar and reports.
+    pub fn name(&self) -> String {
+        match self {
+            EphemerisModel::MeanElements => "JPL mean elements 1800-2050".into(),
+        }
+    }
+
+    /// The ephemeris of a planet under this model.
+    pub fn planet(&self, p: Planet) -> Result<PlanetEphemeris, EphemerisError> {
+        match self {
+            EphemerisModel::MeanElements => Ok(PlanetEphemeris::Standish(MeanElements::of(p))),
+        }
+    }
+
+    /// Physical constants of a planet under this model.
+    pub fn planet_data(&self, p: Planet) -> crate::bodies::BodyData {
+        match self {
+            EphemerisModel::MeanElements => p.data(),
+        }
+    }
+
+    /// Instants this model covers.
+    pub fn range(&self) -> (Tdb, Tdb) {
+        match self {
+            EphemerisModel::MeanElements => mean_element_range(),
+        }
     }
 }
 
@@ -342,6 +404,8 @@ pub struct OsculatingOrbit {
     pub elements: OsculatingElements,
     /// Time since perihelion at the element epoch, s (derived once).
     tp_offset_s: f64,
+    /// The element epoch as engine time (converted once).
+    t_elements: Tdb,
 }
 
 impl OsculatingOrbit {
@@ -365,19 +429,26 @@ impl OsculatingOrbit {
                 el.mean_anomaly_deg * DEG / (MU_SUN / (a * a * a)).sqrt()
             }
         };
+        if !tp_offset_s.is_finite() {
+            return Err(EphemerisError::Orbit(
+                "the mean anomaly and perihelion distance give no finite time from perihelion"
+                    .into(),
+            ));
+        }
         Ok(OsculatingOrbit {
             elements: el,
             tp_offset_s,
+            t_elements: el.epoch.tdb(),
         })
     }
 }
 
 impl Ephemeris for OsculatingOrbit {
-    fn state(&self, t: Epoch) -> Result<State, EphemerisError> {
+    fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
         check_range(t, self.valid_range())?;
         let el = &self.elements;
         let q = el.q_au * AU_KM;
-        let dt = t.tdb_s - el.epoch.tdb_s + self.tp_offset_s;
+        let dt = t.0 - self.t_elements.0 + self.tp_offset_s;
         let nu = kepler::true_anomaly_from_time(q, el.e, MU_SUN, dt);
         let e = Elements {
             p: q * (1.0 + el.e),
@@ -390,7 +461,7 @@ impl Ephemeris for OsculatingOrbit {
         e.to_state(MU_SUN)
             .map_err(|x| EphemerisError::Orbit(x.to_string()))
     }
-    fn valid_range(&self) -> (Epoch, Epoch) {
+    fn valid_range(&self) -> (Tdb, Tdb) {
         mean_element_range()
     }
 }

@@ -237,20 +237,42 @@ pub fn energy_change(v_helio_in: &Vec3, v_helio_out: &Vec3) -> EnergyChange {
     }
 }
 
-/// Sample points of the planet-centred hyperbola in its own plane (for drawing the Swing-by
-/// lens): returns (x, y) pairs, periapsis on +x, incoming branch at negative y, over true anomaly
-/// within `frac` of the asymptote angle. Writes into `out` and returns how many points.
-pub fn hyperbola_points(rp: f64, e: f64, frac: f64, out: &mut [(f64, f64)]) -> usize {
+/// True anomaly of the asymptotes of a hyperbola, ν∞ = acos(−1/e), rad (`None` unless e > 1).
+pub fn asymptote_true_anomaly(e: f64) -> Option<f64> {
+    (e > 1.0 && e.is_finite()).then(|| (-1.0 / e).acos())
+}
+
+/// Direction of motion along the incoming asymptote in the hyperbola's own frame (periapsis on
+/// +x, motion counter-clockwise), as an angle from +x, rad. Rotating a drawing by minus this
+/// angle makes the spacecraft arrive along +x.
+pub fn incoming_direction_angle(e: f64) -> Option<f64> {
+    let nu = asymptote_true_anomaly(e)?;
+    // v ∝ (−sin ν, e + cos ν) at ν = −ν∞, where cos ν∞ = −1/e.
+    Some((e - 1.0 / e).atan2(nu.sin()))
+}
+
+/// Points (x, y) of the hyperbola r = p/(1 + e cos ν) in its own plane (periapsis on +x,
+/// incoming branch at negative y), for true anomalies from `from` to `to` given as fractions of
+/// the asymptote angle ν∞ (−1 and 1 are the asymptotes themselves). Writes into `out`, returns
+/// how many points (0 when e ≤ 1 or `out` has fewer than two places).
+pub fn hyperbola_arc(rp: f64, e: f64, from: f64, to: f64, out: &mut [(f64, f64)]) -> usize {
     let n = out.len();
-    if n < 2 || e <= 1.0 {
+    let Some(nu_inf) = asymptote_true_anomaly(e).filter(|_| n >= 2 && rp > 0.0) else {
         return 0;
-    }
-    let nu_inf = (-1.0 / e).acos();
+    };
+    let from = from.clamp(-0.999, 0.999);
+    let to = to.clamp(-0.999, 0.999);
     let p = rp * (1.0 + e);
     for (k, o) in out.iter_mut().enumerate() {
-        let nu = -frac * nu_inf + 2.0 * frac * nu_inf * k as f64 / (n - 1) as f64;
+        let nu = nu_inf * (from + (to - from) * k as f64 / (n - 1) as f64);
         let r = p / (1.0 + e * nu.cos());
         *o = (r * nu.cos(), r * nu.sin());
     }
     n
+}
+
+/// Sample points of the planet-centred hyperbola in its own plane, symmetric about periapsis
+/// over true anomaly within `frac` of the asymptote angle (see [`hyperbola_arc`]).
+pub fn hyperbola_points(rp: f64, e: f64, frac: f64, out: &mut [(f64, f64)]) -> usize {
+    hyperbola_arc(rp, e, -frac, frac, out)
 }

@@ -290,7 +290,20 @@ pub fn stumpff(z: f64) -> (f64, f64) {
 /// formulation (Bate, Mueller & White 1971 ch. 4; Vallado algorithm 8). The universal Kepler
 /// equation is monotonic in χ, so Newton steps are safeguarded by a bracket and always converge.
 pub fn propagate(s: &State, dt: f64, mu: f64) -> Result<State, KeplerError> {
+    propagate_split(s, dt, mu, 0)
+}
+
+/// Halvings of a long hyperbolic step allowed before giving up (2^12 pieces).
+const MAX_SPLIT_DEPTH: u32 = 12;
+
+fn propagate_split(s: &State, dt: f64, mu: f64, depth: u32) -> Result<State, KeplerError> {
+    if !(dt.is_finite() && mu > 0.0 && mu.is_finite()) {
+        return Err(KeplerError::Degenerate("time step or μ not finite"));
+    }
     let r0 = s.r.norm();
+    if !(r0.is_finite() && s.v.norm().is_finite()) {
+        return Err(KeplerError::Degenerate("state not finite"));
+    }
     if r0 == 0.0 {
         return Err(KeplerError::Degenerate("zero position"));
     }
@@ -398,8 +411,11 @@ pub fn propagate(s: &State, dt: f64, mu: f64) -> Result<State, KeplerError> {
     if alpha * x2 < -36.0 {
         // Beyond a hyperbolic-anomaly change of 6 the f and g functions lose digits to
         // cancellation (they grow like e^ΔH); two half steps keep the result to ~1e-13.
-        let mid = propagate(s, 0.5 * dt, mu)?;
-        return propagate(&mid, 0.5 * dt, mu);
+        if depth >= MAX_SPLIT_DEPTH {
+            return Err(KeplerError::NoConvergence);
+        }
+        let mid = propagate_split(s, 0.5 * dt, mu, depth + 1)?;
+        return propagate_split(&mid, 0.5 * dt, mu, depth + 1);
     }
     let (c, sv) = stumpff(alpha * x2);
     let f = 1.0 - x2 / r0 * c;
@@ -408,14 +424,24 @@ pub fn propagate(s: &State, dt: f64, mu: f64) -> Result<State, KeplerError> {
     let rn = r.norm();
     let fdot = sqmu / (rn * r0) * (alpha * x2 * x * sv - x);
     let gdot = 1.0 - x2 / rn * c;
-    Ok(State {
+    let out = State {
         r,
         v: fdot * s.r + gdot * s.v,
-    })
+    };
+    if !(out.r.norm().is_finite() && out.v.norm().is_finite()) {
+        return Err(KeplerError::NoConvergence);
+    }
+    Ok(out)
 }
 
 /// Specific orbital energy v²/2 − μ/r, km²/s².
 #[inline]
 pub fn specific_energy(s: &State, mu: f64) -> f64 {
     0.5 * s.v.norm_squared() - mu / s.r.norm()
+}
+
+/// Local escape speed √(2μ/r), km/s.
+#[inline]
+pub fn escape_speed(mu: f64, r: f64) -> f64 {
+    (2.0 * mu / r).sqrt()
 }

@@ -1,16 +1,22 @@
 //! Epochs and time scales.
 //!
-//! The engine counts time as TDB seconds since J2000 (2000-01-01 12:00:00 TDB). Users see UTC
-//! calendar dates. The chain is UTC -> TAI (leap-second table below) -> TT (+32.184 s) -> TDB
-//! (periodic term, about 1.7 ms).
+//! Two types:
+//! - [`Epoch`]: an exact calendar label in UTC or TDB, as written in a design file or typed by a
+//!   user (day number plus nanoseconds of the day, so that a leap second `23:59:60` and
+//!   sub-millisecond precision survive a save and a load unchanged).
+//! - [`Tdb`]: TDB seconds since J2000 (2000-01-01 12:00:00 TDB) as `f64`, the engine's working
+//!   time on every hot path (ephemerides, Lambert arcs, evaluation, search).
 //!
-//! Leap seconds: TAI−UTC from IERS Bulletin C (the table of leap seconds since 1972; last step
-//! 2017-01-01, TAI−UTC = 37 s; Bulletin C has announced none since, as of this writing). Dates after
-//! the table use the last value. Before 1972 UTC ran with fractional "rubber" offsets; this engine
-//! uses TAI−UTC = 10 s there, a documented approximation (error under ~4 s back to 1960 and growing
-//! before; immaterial for preliminary design at day-level dates).
+//! Time scales come from `hifitime`: its leap-second table (IERS announcements, and SOFA's
+//! offsets for 1960-1972) and its TAI -> TT -> TDB model. The UTC calendar itself (which second of
+//! the day, including second 60 on a leap-second day) is handled here, because hifitime 4.3 folds
+//! `23:59:60` onto `23:59:59` when it builds or prints a UTC date (measured; see
+//! DEVELOPERS.md). Before 1960 UTC is not defined; there a UTC label is read with TAI−UTC = 0,
+//! as hifitime does (a few seconds, immaterial for preliminary design).
 
 use std::fmt;
+
+use hifitime::leap_seconds::LatestLeapSeconds;
 
 use crate::constants::{DAY_S, JULIAN_CENTURY_DAYS};
 
@@ -18,75 +24,33 @@ use crate::constants::{DAY_S, JULIAN_CENTURY_DAYS};
 pub const JD_J2000: f64 = 2_451_545.0;
 /// Offset between Julian date and modified Julian date.
 pub const MJD_OFFSET: f64 = 2_400_000.5;
-/// TT − TAI, seconds (exact by definition, IAU 1991 / common practice).
+/// MJD of 1900-01-01, hifitime's TAI reference day.
+const MJD_1900: i64 = 15_020;
+/// MJD of 2000-01-01 (J2000 is noon of that day).
+const MJD_2000: i64 = 51_544;
+const NS_PER_S: i128 = 1_000_000_000;
+const NS_PER_DAY: i128 = 86_400 * NS_PER_S;
+/// TT − TAI, seconds (exact by definition, IAU 1991).
 pub const TT_MINUS_TAI_S: f64 = 32.184;
 
-/// (MJD of the UTC day the step takes effect, TAI−UTC in seconds from then). IERS Bulletin C.
-const LEAP_SECONDS: [(i32, f64); 28] = [
-    (41317, 10.0), // 1972-01-01
-    (41499, 11.0), // 1972-07-01
-    (41683, 12.0), // 1973-01-01
-    (42048, 13.0), // 1974-01-01
-    (42413, 14.0), // 1975-01-01
-    (42778, 15.0), // 1976-01-01
-    (43144, 16.0), // 1977-01-01
-    (43509, 17.0), // 1978-01-01
-    (43874, 18.0), // 1979-01-01
-    (44239, 19.0), // 1980-01-01
-    (44786, 20.0), // 1981-07-01
-    (45151, 21.0), // 1982-07-01
-    (45516, 22.0), // 1983-07-01
-    (46247, 23.0), // 1985-07-01
-    (47161, 24.0), // 1988-01-01
-    (47892, 25.0), // 1990-01-01
-    (48257, 26.0), // 1991-01-01
-    (48804, 27.0), // 1992-07-01
-    (49169, 28.0), // 1993-07-01
-    (49534, 29.0), // 1994-07-01
-    (50083, 30.0), // 1996-01-01
-    (50630, 31.0), // 1997-07-01
-    (51179, 32.0), // 1999-01-01
-    (53736, 33.0), // 2006-01-01
-    (54832, 34.0), // 2009-01-01
-    (56109, 35.0), // 2012-07-01
-    (57204, 36.0), // 2015-07-01
-    (57754, 37.0), // 2017-01-01
-];
-
-/// TAI − UTC in seconds for a UTC calendar day given as MJD (integer day).
-pub fn tai_minus_utc(mjd_utc_day: i32) -> f64 {
-    let mut off = 10.0;
-    for &(mjd, s) in LEAP_SECONDS.iter() {
-        if mjd_utc_day >= mjd {
-            off = s;
-        } else {
-            break;
-        }
-    }
-    off
-}
-
-/// TDB − TT in seconds, from the two leading periodic terms (Explanatory Supplement to the
-/// Astronomical Almanac, 1992, eq. 2.222-1; from memory): 0.001657 sin g + 0.000014 sin 2g.
-pub fn tdb_minus_tt(jd_tt: f64) -> f64 {
-    let g = (357.53 + 0.985_600_28 * (jd_tt - JD_J2000)).to_radians();
-    0.001_657 * g.sin() + 0.000_014 * (2.0 * g).sin()
-}
-
-/// Time scale of a calendar date written in a file or typed by a user.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+/// Time scale of a calendar label.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
 pub enum TimeScale {
-    /// Coordinated Universal Time.
+    /// Coordinated Universal Time (with leap seconds).
+    #[default]
     Utc,
     /// Barycentric Dynamical Time (the engine's own scale).
     Tdb,
 }
 
-/// An instant, as TDB seconds since J2000.
-#[derive(Clone, Copy, Debug, PartialEq, PartialOrd, Default)]
-pub struct Epoch {
-    /// TDB seconds since 2000-01-01 12:00:00 TDB.
-    pub tdb_s: f64,
+impl TimeScale {
+    /// The suffix written after a date.
+    pub fn suffix(self) -> &'static str {
+        match self {
+            TimeScale::Utc => "UTC",
+            TimeScale::Tdb => "TDB",
+        }
+    }
 }
 
 /// Why a date could not be read.
@@ -94,10 +58,10 @@ pub struct Epoch {
 pub enum TimeError {
     /// Text is not an ISO-8601 date.
     #[error(
-        "'{0}' is not a date (expected YYYY-MM-DD or YYYY-MM-DDTHH:MM:SS[.fff] with optional UTC or TDB)"
+        "'{0}' is not a date (expected YYYY-MM-DD or YYYY-MM-DDTHH:MM:SS[.fffffffff] with optional UTC or TDB)"
     )]
     Syntax(String),
-    /// A field is out of its range (month 13, day 32, ...).
+    /// A field is out of its range (month 13, day 32, second 60 on a day without a leap second).
     #[error("'{0}': {1} out of range")]
     Range(String, &'static str),
 }
@@ -144,74 +108,137 @@ fn days_in_month(y: i32, m: u32) -> u32 {
     }
 }
 
-impl Epoch {
-    /// J2000 itself.
-    pub const J2000: Epoch = Epoch { tdb_s: 0.0 };
-
-    /// From TDB seconds since J2000.
-    pub const fn from_tdb_seconds(s: f64) -> Self {
-        Epoch { tdb_s: s }
-    }
-
-    /// From TDB days since J2000.
-    pub fn from_tdb_days(d: f64) -> Self {
-        Epoch { tdb_s: d * DAY_S }
-    }
-
-    /// From MJD2000 (days since 2000-01-01 00:00, counted in TDB as common in trajectory work).
-    pub fn from_mjd2000(d: f64) -> Self {
-        Epoch::from_tdb_days(d - 0.5)
-    }
-
-    /// From a Julian date in TDB.
-    pub fn from_jd_tdb(jd: f64) -> Self {
-        Epoch::from_tdb_days(jd - JD_J2000)
-    }
-
-    /// TDB days since J2000.
-    pub fn days(self) -> f64 {
-        self.tdb_s / DAY_S
-    }
-
-    /// Julian centuries (TDB) since J2000.
-    pub fn centuries(self) -> f64 {
-        self.days() / JULIAN_CENTURY_DAYS
-    }
-
-    /// Julian date in TDB.
-    pub fn jd_tdb(self) -> f64 {
-        JD_J2000 + self.days()
-    }
-
-    /// Modified Julian date in TDB.
-    pub fn mjd_tdb(self) -> f64 {
-        self.jd_tdb() - MJD_OFFSET
-    }
-
-    /// MJD2000: days since 2000-01-01 00:00 (TDB), i.e. MJD − 51544.
-    pub fn mjd2000(self) -> f64 {
-        self.days() + 0.5
-    }
-
-    /// This epoch shifted by a number of days.
-    pub fn plus_days(self, d: f64) -> Self {
-        Epoch {
-            tdb_s: self.tdb_s + d * DAY_S,
+/// TAI − UTC in nanoseconds in force on the UTC day `mjd` (hifitime's table; 0 before 1960).
+fn tai_minus_utc_ns(mjd: i64) -> i128 {
+    let day_start = (mjd - MJD_1900) as f64 * DAY_S;
+    let mut off = 0.0;
+    for ls in LatestLeapSeconds::default() {
+        if ls.timestamp_tai_s <= day_start {
+            off = ls.delta_at;
+        } else {
+            break;
         }
     }
+    (off * 1e9).round() as i128
+}
 
-    /// The epoch of a UTC calendar date and time of day.
-    pub fn from_utc(year: i32, month: u32, day: u32, hour: u32, min: u32, sec: f64) -> Self {
-        let mjd = mjd_from_calendar(year, month, day);
-        let day_s = hour as f64 * 3600.0 + min as f64 * 60.0 + sec;
-        let tai_s_from_mjd0 = day_s + tai_minus_utc(mjd);
-        let tt_days = mjd as f64 + (tai_s_from_mjd0 + TT_MINUS_TAI_S) / DAY_S;
-        let jd_tt = tt_days + MJD_OFFSET;
-        let tdb_s = (jd_tt - JD_J2000) * DAY_S + tdb_minus_tt(jd_tt);
-        Epoch { tdb_s }
+/// How long UTC day `mjd` is beyond 86 400 s (the leap second before the next offset step), ns.
+fn day_extension_ns(mjd: i64) -> i128 {
+    (tai_minus_utc_ns(mjd + 1) - tai_minus_utc_ns(mjd)).max(0)
+}
+
+/// TAI − UTC in seconds for a UTC calendar day given as MJD (integer day).
+pub fn tai_minus_utc(mjd_utc_day: i32) -> f64 {
+    tai_minus_utc_ns(mjd_utc_day as i64) as f64 / 1e9
+}
+
+/// Calendar fields of an epoch in one scale.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Calendar {
+    /// Year.
+    pub year: i32,
+    /// Month 1-12.
+    pub month: u32,
+    /// Day 1-31.
+    pub day: u32,
+    /// Hour 0-23.
+    pub hour: u32,
+    /// Minute 0-59.
+    pub minute: u32,
+    /// Second 0-59, or 60 during a leap second.
+    pub second: u32,
+    /// Nanoseconds of the second.
+    pub nanos: u32,
+}
+
+/// An exact calendar label: a day (MJD) and the nanoseconds into it, in UTC or TDB.
+///
+/// Two labels are equal when they are written the same way; compare instants through
+/// [`Epoch::tdb`]. On a UTC leap-second day the nanoseconds may run past 86 400 s.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub struct Epoch {
+    scale: TimeScale,
+    mjd: i32,
+    nanos: u64,
+}
+
+impl Default for Epoch {
+    fn default() -> Self {
+        Epoch::J2000
+    }
+}
+
+impl Epoch {
+    /// J2000 (2000-01-01 12:00:00 TDB).
+    pub const J2000: Epoch = Epoch {
+        scale: TimeScale::Tdb,
+        mjd: MJD_2000 as i32,
+        nanos: 43_200 * 1_000_000_000,
+    };
+
+    /// The scale the label is written in.
+    pub fn scale(self) -> TimeScale {
+        self.scale
     }
 
-    /// The epoch of a TDB calendar date and time of day.
+    /// From calendar fields in a scale; second 60 only on a UTC leap-second day.
+    pub fn from_calendar(scale: TimeScale, c: Calendar) -> Result<Epoch, TimeError> {
+        let text = || {
+            format!(
+                "{:04}-{:02}-{:02}T{:02}:{:02}:{:02}",
+                c.year, c.month, c.day, c.hour, c.minute, c.second
+            )
+        };
+        if !(0..=9999).contains(&c.year) {
+            return Err(TimeError::Range(text(), "year (0000-9999)"));
+        }
+        if !(1..=12).contains(&c.month) {
+            return Err(TimeError::Range(text(), "month"));
+        }
+        if c.day < 1 || c.day > days_in_month(c.year, c.month) {
+            return Err(TimeError::Range(text(), "day"));
+        }
+        if c.hour > 23 {
+            return Err(TimeError::Range(text(), "hour"));
+        }
+        if c.minute > 59 {
+            return Err(TimeError::Range(text(), "minute"));
+        }
+        if c.nanos >= 1_000_000_000 {
+            return Err(TimeError::Range(text(), "fraction of a second"));
+        }
+        let mjd = mjd_from_calendar(c.year, c.month, c.day);
+        let nanos = (c.hour as i128 * 3600 + c.minute as i128 * 60 + c.second as i128) * NS_PER_S
+            + c.nanos as i128;
+        let limit = NS_PER_DAY
+            + if scale == TimeScale::Utc {
+                day_extension_ns(mjd as i64)
+            } else {
+                0
+            };
+        if c.second > 60 || nanos >= limit {
+            return Err(TimeError::Range(text(), "second"));
+        }
+        Ok(Epoch {
+            scale,
+            mjd,
+            nanos: nanos as u64,
+        })
+    }
+
+    /// A UTC date and time; `sec` may carry a fraction (rounded to the nanosecond).
+    pub fn from_utc(
+        year: i32,
+        month: u32,
+        day: u32,
+        hour: u32,
+        min: u32,
+        sec: f64,
+    ) -> Result<Epoch, TimeError> {
+        Self::from_fields(TimeScale::Utc, year, month, day, hour, min, sec)
+    }
+
+    /// A TDB date and time; `sec` may carry a fraction (rounded to the nanosecond).
     pub fn from_tdb_calendar(
         year: i32,
         month: u32,
@@ -219,74 +246,237 @@ impl Epoch {
         hour: u32,
         min: u32,
         sec: f64,
-    ) -> Self {
-        let mjd = mjd_from_calendar(year, month, day);
-        let s = hour as f64 * 3600.0 + min as f64 * 60.0 + sec;
-        Epoch {
-            tdb_s: (mjd as f64 + MJD_OFFSET - JD_J2000) * DAY_S + s,
+    ) -> Result<Epoch, TimeError> {
+        Self::from_fields(TimeScale::Tdb, year, month, day, hour, min, sec)
+    }
+
+    fn from_fields(
+        scale: TimeScale,
+        year: i32,
+        month: u32,
+        day: u32,
+        hour: u32,
+        min: u32,
+        sec: f64,
+    ) -> Result<Epoch, TimeError> {
+        if !(0.0..61.0).contains(&sec) {
+            return Err(TimeError::Range(format!("{sec}"), "second"));
+        }
+        let ns = (sec * 1e9).round() as u64;
+        Self::from_calendar(
+            scale,
+            Calendar {
+                year,
+                month,
+                day,
+                hour,
+                minute: min,
+                second: (ns / 1_000_000_000) as u32,
+                nanos: (ns % 1_000_000_000) as u32,
+            },
+        )
+    }
+
+    /// The label as a linear count of nanoseconds from 1900-01-01 in its own scale's clock (TAI for
+    /// UTC labels, TDB for TDB labels).
+    fn linear_ns(self) -> i128 {
+        let day = self.mjd as i128 - MJD_1900 as i128;
+        let base = day * NS_PER_DAY + self.nanos as i128;
+        match self.scale {
+            TimeScale::Utc => base + tai_minus_utc_ns(self.mjd as i64),
+            TimeScale::Tdb => base,
         }
     }
 
-    /// UTC calendar fields (year, month, day, hour, minute, second) of this epoch.
-    pub fn to_utc(self) -> (i32, u32, u32, u32, u32, f64) {
-        let jd_tdb = self.jd_tdb();
-        // TDB -> TT (the periodic term is a function of TT; one fixed-point step is exact to ns).
-        let tt_s = self.tdb_s - tdb_minus_tt(jd_tdb - tdb_minus_tt(jd_tdb) / DAY_S);
-        let tai_s = tt_s - TT_MINUS_TAI_S;
-        // Seconds since MJD 51544.5 (J2000 noon) on the TAI scale; find the UTC day.
-        let mut off = 37.0;
-        for _ in 0..3 {
-            let utc_s = tai_s - off;
-            let mjd_f = 51_544.5 + utc_s / DAY_S;
-            let new_off = tai_minus_utc(mjd_f.floor() as i32);
-            if new_off == off {
-                break;
+    /// Inverse of `linear_ns`.
+    fn from_linear_ns(scale: TimeScale, ns: i128) -> Epoch {
+        let split = |ns: i128| {
+            let day = ns.div_euclid(NS_PER_DAY);
+            (day + MJD_1900 as i128, ns.rem_euclid(NS_PER_DAY))
+        };
+        match scale {
+            TimeScale::Tdb => {
+                let (mjd, nanos) = split(ns);
+                Epoch {
+                    scale,
+                    mjd: mjd as i32,
+                    nanos: nanos as u64,
+                }
             }
-            off = new_off;
+            TimeScale::Utc => {
+                // Try the offset in force on the candidate day and on the day before; a TAI instant
+                // inside a leap second belongs to the previous day, past 86 400 s.
+                let (mjd0, _) = split(ns);
+                for mjd in [mjd0 as i64, mjd0 as i64 - 1, mjd0 as i64 + 1] {
+                    let off = tai_minus_utc_ns(mjd);
+                    let rel = ns - off - (mjd - MJD_1900) as i128 * NS_PER_DAY;
+                    if rel >= 0 && rel < NS_PER_DAY + day_extension_ns(mjd) {
+                        return Epoch {
+                            scale,
+                            mjd: mjd as i32,
+                            nanos: rel as u64,
+                        };
+                    }
+                }
+                // A negative step (1961, 1968) leaves a gap: take the later day's reading.
+                let off = tai_minus_utc_ns(mjd0 as i64);
+                let (mjd, nanos) = split(ns - off);
+                Epoch {
+                    scale,
+                    mjd: mjd as i32,
+                    nanos: nanos as u64,
+                }
+            }
         }
-        Self::split_days(51_544.5 + (tai_s - off) / DAY_S)
     }
 
-    /// TDB calendar fields of this epoch.
-    pub fn to_tdb_calendar(self) -> (i32, u32, u32, u32, u32, f64) {
-        Self::split_days(self.mjd_tdb())
+    /// The instant as TDB seconds since J2000.
+    pub fn tdb(self) -> Tdb {
+        match self.scale {
+            TimeScale::Tdb => {
+                // Whole days and nanoseconds apart, so that no digits are lost before the sum.
+                let days = (self.mjd as i64 - MJD_2000) as f64 * DAY_S - 43_200.0;
+                Tdb(days + self.nanos as f64 * 1e-9)
+            }
+            TimeScale::Utc => {
+                let tai = hifitime::Duration::from_total_nanoseconds(self.linear_ns());
+                let t = hifitime::Epoch::from_tai_duration(tai).to_tdb_duration();
+                Tdb(t.to_seconds())
+            }
+        }
     }
 
-    fn split_days(mjd: f64) -> (i32, u32, u32, u32, u32, f64) {
-        // Round to the millisecond first so that formatting never shows 60.000 s.
-        let total_ms = (mjd * DAY_S * 1000.0).round();
-        let day = (total_ms / (DAY_S * 1000.0)).floor();
-        let ms_of_day = total_ms - day * DAY_S * 1000.0;
-        let (y, mo, d) = calendar_from_mjd(day as i32);
-        let h = (ms_of_day / 3_600_000.0).floor();
-        let mi = ((ms_of_day - h * 3_600_000.0) / 60_000.0).floor();
-        let s = (ms_of_day - h * 3_600_000.0 - mi * 60_000.0) / 1000.0;
-        (y, mo, d, h as u32, mi as u32, s)
+    /// The label in `scale` of the instant `t` (rounded to the nanosecond).
+    pub fn from_tdb(t: Tdb, scale: TimeScale) -> Epoch {
+        let tdb_ns = (t.0 * 1e9).round() as i128;
+        match scale {
+            TimeScale::Tdb => {
+                let j2000 = (MJD_2000 - MJD_1900) as i128 * NS_PER_DAY + 43_200 * NS_PER_S;
+                Epoch::from_linear_ns(TimeScale::Tdb, j2000 + tdb_ns)
+            }
+            TimeScale::Utc => {
+                let e = hifitime::Epoch::from_tdb_duration(
+                    hifitime::Duration::from_total_nanoseconds(tdb_ns),
+                );
+                Epoch::from_linear_ns(TimeScale::Utc, e.to_tai_duration().total_nanoseconds())
+            }
+        }
     }
 
-    /// ISO-8601 text in UTC with millisecond precision, e.g. `2031-03-04T12:00:00.000 UTC`.
+    /// The same instant labelled in another scale.
+    pub fn in_scale(self, scale: TimeScale) -> Epoch {
+        if scale == self.scale {
+            self
+        } else {
+            Epoch::from_tdb(self.tdb(), scale)
+        }
+    }
+
+    /// This epoch moved by `s` seconds of its own clock (SI seconds; leap seconds counted).
+    pub fn plus_seconds(self, s: f64) -> Epoch {
+        Epoch::from_linear_ns(self.scale, self.linear_ns() + (s * 1e9).round() as i128)
+    }
+
+    /// This epoch moved by `d` days of 86 400 s.
+    pub fn plus_days(self, d: f64) -> Epoch {
+        self.plus_seconds(d * DAY_S)
+    }
+
+    /// Calendar fields in the label's own scale.
+    pub fn calendar(self) -> Calendar {
+        let (year, month, day) = calendar_from_mjd(self.mjd);
+        let s = self.nanos / 1_000_000_000;
+        let (hour, minute, second) = if s >= 86_400 {
+            (23, 59, 60 + (s - 86_400) as u32)
+        } else {
+            ((s / 3600) as u32, ((s / 60) % 60) as u32, (s % 60) as u32)
+        };
+        Calendar {
+            year,
+            month,
+            day,
+            hour,
+            minute,
+            second,
+            nanos: (self.nanos % 1_000_000_000) as u32,
+        }
+    }
+
+    /// ISO-8601 text in the label's own scale with every significant digit (at least
+    /// milliseconds), e.g. `2031-03-04T12:00:00.000 UTC`. This is what design files hold; it reads
+    /// back to the identical label.
+    pub fn to_iso(self) -> String {
+        let c = self.calendar();
+        let mut frac = format!("{:09}", c.nanos);
+        while frac.len() > 3 && frac.ends_with('0') {
+            frac.pop();
+        }
+        format!(
+            "{:04}-{:02}-{:02}T{:02}:{:02}:{:02}.{frac} {}",
+            c.year,
+            c.month,
+            c.day,
+            c.hour,
+            c.minute,
+            c.second,
+            self.scale.suffix()
+        )
+    }
+
+    /// ISO-8601 text in UTC to the millisecond (truncated, so that 23:59:59.9996 never shows as
+    /// 60.000), for display.
     pub fn to_iso_utc(self) -> String {
-        let (y, mo, d, h, mi, s) = self.to_utc();
-        format!("{y:04}-{mo:02}-{d:02}T{h:02}:{mi:02}:{s:06.3} UTC")
-    }
-
-    /// ISO-8601 text in TDB with millisecond precision.
-    pub fn to_iso_tdb(self) -> String {
-        let (y, mo, d, h, mi, s) = self.to_tdb_calendar();
-        format!("{y:04}-{mo:02}-{d:02}T{h:02}:{mi:02}:{s:06.3} TDB")
+        let c = self.in_scale(TimeScale::Utc).calendar();
+        format!(
+            "{:04}-{:02}-{:02}T{:02}:{:02}:{:02}.{:03} UTC",
+            c.year,
+            c.month,
+            c.day,
+            c.hour,
+            c.minute,
+            c.second,
+            c.nanos / 1_000_000
+        )
     }
 
     /// The UTC calendar date alone, `YYYY-MM-DD`.
     pub fn to_date_utc(self) -> String {
-        let (y, mo, d, ..) = self.to_utc();
-        format!("{y:04}-{mo:02}-{d:02}")
+        let c = self.in_scale(TimeScale::Utc).calendar();
+        format!("{:04}-{:02}-{:02}", c.year, c.month, c.day)
     }
 
-    /// Parse ISO-8601 text: `YYYY-MM-DD`, optionally `THH:MM[:SS[.fff]]`, optionally followed by
-    /// `Z`, ` UTC` or ` TDB`. Without a scale the text is read as UTC.
+    /// MJD2000 of the instant (days since 2000-01-01 00:00 TDB).
+    pub fn mjd2000(self) -> f64 {
+        self.tdb().mjd2000()
+    }
+
+    /// TDB days since J2000.
+    pub fn days(self) -> f64 {
+        self.tdb().days()
+    }
+
+    /// Now, from the system clock (UTC; the system clock does not count leap seconds).
+    pub fn now() -> Epoch {
+        let d = std::time::SystemTime::now()
+            .duration_since(std::time::UNIX_EPOCH)
+            .unwrap_or_default();
+        let s = d.as_secs() as i64;
+        // Unix time counts UTC days of 86 400 s from 1970-01-01 (MJD 40587).
+        Epoch {
+            scale: TimeScale::Utc,
+            mjd: (40_587 + s.div_euclid(86_400)) as i32,
+            nanos: s.rem_euclid(86_400) as u64 * 1_000_000_000 + d.subsec_nanos() as u64,
+        }
+    }
+
+    /// Parse ISO-8601 text: `YYYY-MM-DD`, optionally `THH:MM[:SS[.f…]]` (up to nanoseconds),
+    /// optionally followed by `Z`, ` UTC` or ` TDB`. Without a scale the text is read as UTC.
     pub fn parse(text: &str) -> Result<Epoch, TimeError> {
         let t = text.trim();
-        let syntax = || TimeError::Syntax(text.to_string());
+        let syntax = || TimeError::Syntax(text.chars().take(80).collect());
+        if t.len() > 64 {
+            return Err(syntax());
+        }
         let (body, scale) = if let Some(b) = t.strip_suffix("TDB") {
             (b.trim_end(), TimeScale::Tdb)
         } else if let Some(b) = t.strip_suffix("UTC") {
@@ -300,59 +490,60 @@ impl Epoch {
             Some((d, tm)) => (d, Some(tm.trim())),
             None => (body, None),
         };
-        let mut parts = date.splitn(3, '-');
-        let y: i32 = parts
-            .next()
-            .and_then(|p| p.parse().ok())
-            .ok_or_else(syntax)?;
-        let mo: u32 = parts
-            .next()
-            .and_then(|p| p.parse().ok())
-            .ok_or_else(syntax)?;
-        let d: u32 = parts
-            .next()
-            .and_then(|p| p.parse().ok())
-            .ok_or_else(syntax)?;
-        if date.len() < 8 {
+        let digits = |p: &str, n: std::ops::RangeInclusive<usize>| -> Result<u32, TimeError> {
+            if !n.contains(&p.len()) || !p.bytes().all(|b| b.is_ascii_digit()) {
+                return Err(syntax());
+            }
+            p.parse().map_err(|_| syntax())
+        };
+        let mut parts = date.split('-');
+        let (Some(y), Some(mo), Some(d), None) =
+            (parts.next(), parts.next(), parts.next(), parts.next())
+        else {
             return Err(syntax());
-        }
-        if !(1..=12).contains(&mo) {
-            return Err(TimeError::Range(text.to_string(), "month"));
-        }
-        if d < 1 || d > days_in_month(y, mo) {
-            return Err(TimeError::Range(text.to_string(), "day"));
-        }
-        let (mut h, mut mi, mut s) = (0u32, 0u32, 0.0f64);
+        };
+        let mut c = Calendar {
+            year: digits(y, 4..=4)? as i32,
+            month: digits(mo, 1..=2)?,
+            day: digits(d, 1..=2)?,
+            hour: 0,
+            minute: 0,
+            second: 0,
+            nanos: 0,
+        };
         if let Some(tm) = time.filter(|tm| !tm.is_empty()) {
             let mut f = tm.split(':');
-            h = f.next().and_then(|p| p.parse().ok()).ok_or_else(syntax)?;
-            mi = f.next().and_then(|p| p.parse().ok()).ok_or_else(syntax)?;
+            c.hour = digits(f.next().ok_or_else(syntax)?, 1..=2)?;
+            c.minute = digits(f.next().ok_or_else(syntax)?, 1..=2)?;
             if let Some(sp) = f.next() {
-                s = sp.parse().map_err(|_| syntax())?;
+                let (whole, frac) = match sp.split_once('.') {
+                    Some((w, fr)) => (w, fr),
+                    None => (sp, ""),
+                };
+                c.second = digits(whole, 1..=2)?;
+                if !frac.is_empty() {
+                    if frac.len() > 9 || !frac.bytes().all(|b| b.is_ascii_digit()) {
+                        return Err(syntax());
+                    }
+                    c.nanos = format!("{frac:0<9}").parse().map_err(|_| syntax())?;
+                } else if sp.contains('.') {
+                    return Err(syntax());
+                }
             }
             if f.next().is_some() {
                 return Err(syntax());
             }
-            if h > 23 {
-                return Err(TimeError::Range(text.to_string(), "hour"));
-            }
-            if mi > 59 {
-                return Err(TimeError::Range(text.to_string(), "minute"));
-            }
-            if !(0.0..61.0).contains(&s) {
-                return Err(TimeError::Range(text.to_string(), "second"));
-            }
         }
-        Ok(match scale {
-            TimeScale::Utc => Epoch::from_utc(y, mo, d, h, mi, s),
-            TimeScale::Tdb => Epoch::from_tdb_calendar(y, mo, d, h, mi, s),
+        Epoch::from_calendar(scale, c).map_err(|e| match e {
+            TimeError::Range(_, what) => TimeError::Range(text.trim().to_string(), what),
+            other => other,
         })
     }
 }
 
 impl fmt::Display for Epoch {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&self.to_iso_utc())
+        f.write_str(&self.to_iso())
     }
 }
 
@@ -365,7 +556,7 @@ impl std::str::FromStr for Epoch {
 
 impl serde::Serialize for Epoch {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        s.serialize_str(&self.to_iso_utc())
+        s.serialize_str(&self.to_iso())
     }
 }
 
@@ -373,5 +564,147 @@ impl<'de> serde::Deserialize<'de> for Epoch {
     fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
         let s = String::deserialize(d)?;
         Epoch::parse(&s).map_err(serde::de::Error::custom)
+    }
+}
+
+/// An instant as TDB seconds since J2000: the engine's working time.
+#[derive(Clone, Copy, Debug, PartialEq, PartialOrd, Default)]
+pub struct Tdb(pub f64);
+
+impl Tdb {
+    /// J2000 itself.
+    pub const J2000: Tdb = Tdb(0.0);
+
+    /// Seconds since J2000.
+    #[inline]
+    pub fn seconds(self) -> f64 {
+        self.0
+    }
+
+    /// From TDB days since J2000.
+    #[inline]
+    pub fn from_days(d: f64) -> Tdb {
+        Tdb(d * DAY_S)
+    }
+
+    /// From MJD2000 (days since 2000-01-01 00:00, counted in TDB as common in trajectory work).
+    #[inline]
+    pub fn from_mjd2000(d: f64) -> Tdb {
+        Tdb::from_days(d - 0.5)
+    }
+
+    /// From a Julian date in TDB.
+    pub fn from_jd(jd: f64) -> Tdb {
+        Tdb::from_days(jd - JD_J2000)
+    }
+
+    /// TDB days since J2000.
+    #[inline]
+    pub fn days(self) -> f64 {
+        self.0 / DAY_S
+    }
+
+    /// Julian centuries (TDB) since J2000.
+    #[inline]
+    pub fn centuries(self) -> f64 {
+        self.days() / JULIAN_CENTURY_DAYS
+    }
+
+    /// Julian date in TDB.
+    pub fn jd(self) -> f64 {
+        JD_J2000 + self.days()
+    }
+
+    /// MJD2000: days since 2000-01-01 00:00 (TDB), i.e. MJD − 51544.
+    #[inline]
+    pub fn mjd2000(self) -> f64 {
+        self.days() + 0.5
+    }
+
+    /// Shifted by a number of days.
+    #[inline]
+    pub fn plus_days(self, d: f64) -> Tdb {
+        Tdb(self.0 + d * DAY_S)
+    }
+
+    /// The exact TDB label of this instant (rounded to the nanosecond).
+    pub fn epoch(self) -> Epoch {
+        Epoch::from_tdb(self, TimeScale::Tdb)
+    }
+
+    /// ISO text in UTC to the millisecond, for display.
+    pub fn to_iso_utc(self) -> String {
+        if !self.0.is_finite() {
+            return "not a date".into();
+        }
+        Epoch::from_tdb(self, TimeScale::Utc).to_iso_utc()
+    }
+
+    /// The UTC calendar date, `YYYY-MM-DD`, for display.
+    pub fn to_date_utc(self) -> String {
+        if !self.0.is_finite() {
+            return "not a date".into();
+        }
+        Epoch::from_tdb(self, TimeScale::Utc).to_date_utc()
+    }
+}
+
+impl fmt::Display for Tdb {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.to_iso_utc())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn leap_second_labels_round_trip_and_count_one_second() {
+        // IERS Bulletin C 52: a positive leap second at the end of 2016-12-31.
+        let before = Epoch::parse("2016-12-31T23:59:59 UTC").unwrap();
+        let leap = Epoch::parse("2016-12-31T23:59:60.5 UTC").unwrap();
+        let after = Epoch::parse("2017-01-01T00:00:00 UTC").unwrap();
+        assert_eq!(leap.to_iso(), "2016-12-31T23:59:60.500 UTC");
+        assert_eq!(Epoch::parse(&leap.to_iso()).unwrap(), leap);
+        assert!((after.tdb().0 - before.tdb().0 - 2.0).abs() < 1e-6);
+        assert!((after.tdb().0 - leap.tdb().0 - 0.5).abs() < 1e-6);
+        // From the engine's time back to a UTC label lands inside the leap second (f64 TDB
+        // seconds near 5e8 resolve about 60 ns).
+        let back = Epoch::from_tdb(leap.tdb(), TimeScale::Utc);
+        assert_eq!(back.calendar().second, 60);
+        assert!((back.tdb().0 - leap.tdb().0).abs() < 1e-7);
+        // Second 60 on an ordinary day is refused.
+        assert!(Epoch::parse("2020-01-01T23:59:60 UTC").is_err());
+        assert!(Epoch::parse("2016-12-31T23:59:61 UTC").is_err());
+    }
+
+    #[test]
+    fn nanoseconds_survive_text() {
+        for s in [
+            "2031-03-04T05:06:07.000000001 UTC",
+            "2031-03-04T05:06:07.123456789 TDB",
+            "1800-01-01T00:00:00.000 TDB",
+            "2050-12-31T23:59:59.999999999 UTC",
+        ] {
+            let e = Epoch::parse(s).unwrap();
+            assert_eq!(e.to_iso(), s);
+        }
+        let a = Epoch::parse("2031-03-04T05:06:07.0000001 UTC").unwrap();
+        let b = Epoch::parse("2031-03-04T05:06:07.0000002 UTC").unwrap();
+        assert_ne!(a, b);
+        assert_eq!(a.to_iso(), "2031-03-04T05:06:07.0000001 UTC");
+        assert!(Epoch::parse("12031-03-04").is_err());
+        assert!(Epoch::parse("2031-03-04T05:06:07.1234567891").is_err());
+    }
+
+    #[test]
+    fn tdb_labels_are_exact_and_j2000_is_zero() {
+        assert_eq!(Epoch::J2000.tdb(), Tdb(0.0));
+        let e = Epoch::parse("2000-01-01T00:00:00 TDB").unwrap();
+        assert_eq!(e.tdb().mjd2000(), 0.0);
+        let t = Tdb(1.234_567_890_123e9);
+        let back = Epoch::from_tdb(t, TimeScale::Tdb).tdb();
+        assert!((back.0 - t.0).abs() < 1e-6);
     }
 }

@@ -4,11 +4,12 @@
 
 use serde::{Deserialize, Serialize};
 
-use tourwright_astro::State;
-use tourwright_astro::bodies::{BodyData, Planet};
-use tourwright_astro::ephemeris::{Ephemeris, EphemerisError, OsculatingElements, OsculatingOrbit};
+use tourwright_astro::bodies::Planet;
+use tourwright_astro::ephemeris::OsculatingElements;
 use tourwright_astro::lambert::{Branch, Direction};
 use tourwright_astro::time::Epoch;
+
+pub use crate::score::Objective;
 
 /// The `format` tag every design file carries.
 pub const FORMAT_TAG: &str = "tourwright-design";
@@ -213,20 +214,6 @@ pub struct LaunchVehicle {
     pub performance: Vec<PerformancePoint>,
 }
 
-/// What the optimiser minimises or maximises.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default, Hash)]
-pub enum Objective {
-    /// Launch v∞ plus every spacecraft Δv (the usual MGA benchmark measure), km/s.
-    #[default]
-    TotalDvWithLaunchVinf,
-    /// Spacecraft Δv only, with C3 held under the design's limit, km/s.
-    SpacecraftDv,
-    /// Mass delivered with the launch vehicle (maximised), kg.
-    DeliveredMass,
-    /// Total time of flight (minimised), days.
-    TimeOfFlight,
-}
-
 /// Bounds of a time-of-flight variable, days.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -258,30 +245,10 @@ pub struct SearchBounds {
     pub objective: Objective,
 }
 
-/// A body reference resolved once for evaluation: physical data and its ephemeris.
-#[derive(Clone, Copy, Debug)]
-pub enum ResolvedBody {
-    /// A catalogue planet.
-    Planet(Planet),
-    /// A user body by index into `user_bodies`, with its orbit.
-    User(usize, OsculatingOrbit),
-}
-
-impl ResolvedBody {
-    /// Heliocentric state at `t`.
-    #[inline]
-    pub fn state(&self, t: Epoch) -> Result<State, EphemerisError> {
-        match self {
-            ResolvedBody::Planet(p) => p.state(t),
-            ResolvedBody::User(_, o) => o.state(t),
-        }
-    }
-}
-
 impl MissionDesign {
     /// An empty two-stop design (Earth to Mars) to start from.
     pub fn new_blank() -> Self {
-        let t0 = Epoch::parse("2033-04-01").expect("valid literal");
+        let t0 = Epoch::from_utc(2033, 4, 1, 0, 0, 0.0).unwrap_or_default();
         MissionDesign {
             format: FORMAT_TAG.into(),
             version: FORMAT_VERSION,
@@ -306,37 +273,6 @@ impl MissionDesign {
             spacecraft: Default::default(),
             launch_vehicle: None,
             search: Default::default(),
-        }
-    }
-
-    /// Resolve a body name: catalogue planets first, then user bodies (case-insensitive).
-    pub fn resolve(&self, name: &str) -> Option<ResolvedBody> {
-        if let Some(p) = Planet::from_name(name) {
-            return Some(ResolvedBody::Planet(p));
-        }
-        self.user_bodies
-            .iter()
-            .position(|b| b.name.eq_ignore_ascii_case(name.trim()))
-            .and_then(|i| {
-                OsculatingOrbit::new(self.user_bodies[i].elements)
-                    .ok()
-                    .map(|o| ResolvedBody::User(i, o))
-            })
-    }
-
-    /// Physical data of a resolved body.
-    pub fn body_data(&self, b: &ResolvedBody) -> BodyData {
-        match b {
-            ResolvedBody::Planet(p) => p.data(),
-            ResolvedBody::User(i, _) => {
-                let u = &self.user_bodies[*i];
-                BodyData {
-                    mu: u.mu_km3_s2.max(0.0),
-                    radius_km: u.radius_km.max(0.0),
-                    min_altitude_km: 0.0,
-                    soi_km: 0.0,
-                }
-            }
         }
     }
 
@@ -371,7 +307,11 @@ impl MissionDesign {
         if let Some(b) = self.search.leg_tof.get(k) {
             return *b;
         }
-        let tof = self.stops[k + 1].epoch.days() - self.stops[k].epoch.days();
+        let tof = match (self.stops.get(k), self.stops.get(k + 1)) {
+            (Some(a), Some(b)) => b.epoch.days() - a.epoch.days(),
+            _ => 100.0,
+        };
+        let tof = if tof.is_finite() { tof.max(1.0) } else { 100.0 };
         TofBounds {
             min_days: (tof * 0.7).max(1.0),
             max_days: tof * 1.3 + 1.0,
@@ -380,10 +320,19 @@ impl MissionDesign {
 
     /// Launch window for search: from the file, else ±60 days around the current launch.
     pub fn launch_window(&self) -> (Epoch, Epoch) {
-        let t0 = self.stops[0].epoch;
+        let t0 = self.stops.first().map(|s| s.epoch).unwrap_or_default();
         (
             self.search.launch_earliest.unwrap_or(t0.plus_days(-60.0)),
             self.search.launch_latest.unwrap_or(t0.plus_days(60.0)),
         )
+    }
+
+    /// Names of every body a stop may use: the catalogue planets, then the user bodies.
+    pub fn body_names(&self) -> Vec<String> {
+        Planet::ALL
+            .iter()
+            .map(|p| p.name().to_string())
+            .chain(self.user_bodies.iter().map(|u| u.name.clone()))
+            .collect()
     }
 }

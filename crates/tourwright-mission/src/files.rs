@@ -6,9 +6,8 @@ use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use tourwright_astro::ephemeris::{OsculatingOrbit, mean_element_range};
-
 use crate::design::{ArrivalGoal, FORMAT_TAG, FORMAT_VERSION, MissionDesign, SwingbyMode};
+use crate::tour::Catalog;
 
 /// Why a design file could not be read or written.
 #[derive(Debug, thiserror::Error)]
@@ -52,6 +51,12 @@ pub struct Invalid {
     pub field: String,
     /// Why.
     pub reason: String,
+}
+
+impl std::fmt::Display for Invalid {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(f, "{}: {}", self.field, self.reason)
+    }
 }
 
 fn bad(field: impl Into<String>, reason: impl Into<String>) -> Invalid {
@@ -98,17 +103,17 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
         if !(u.mu_km3_s2 >= 0.0) || !(u.radius_km >= 0.0) {
             return Err(bad(f("mu_km3_s2"), "μ and radius must be zero or positive"));
         }
-        OsculatingOrbit::new(u.elements).map_err(|e| bad(f("elements"), e.to_string()))?;
     }
+    let catalog = Catalog::of(d)?;
     if d.stops.len() < 2 {
         return Err(bad(
             "stops",
             "a tour needs at least a launch and an arrival stop",
         ));
     }
-    let (lo, hi) = mean_element_range();
+    let (lo, hi) = catalog.model().range();
     for (k, s) in d.stops.iter().enumerate() {
-        if d.resolve(&s.body).is_none() {
+        let Some(body) = catalog.body(&s.body) else {
             return Err(bad(
                 format!("stops[{k}].body"),
                 format!(
@@ -116,8 +121,9 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                     s.body
                 ),
             ));
-        }
-        if !(s.epoch.tdb_s >= lo.tdb_s && s.epoch.tdb_s <= hi.tdb_s) {
+        };
+        let t = s.epoch.tdb();
+        if !(t.0 >= lo.0 && t.0 <= hi.0) {
             return Err(bad(
                 format!("stops[{k}].epoch"),
                 format!(
@@ -128,7 +134,7 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 ),
             ));
         }
-        if k > 0 && s.epoch.tdb_s <= d.stops[k - 1].epoch.tdb_s {
+        if k > 0 && t.0 <= d.stops[k - 1].epoch.tdb().0 {
             return Err(bad(
                 format!("stops[{k}].epoch"),
                 "stops must be in time order",
@@ -153,7 +159,7 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                     "altitude and aim must be numbers",
                 ));
             }
-            if altitude_km <= -d.body_data(&d.resolve(&s.body).expect("checked")).radius_km {
+            if altitude_km <= -body.data.radius_km {
                 return Err(bad(
                     format!("stops[{k}].swingby.mode.altitude_km"),
                     "periapsis below the planet's centre",

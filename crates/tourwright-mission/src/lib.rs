@@ -1,19 +1,27 @@
-//! The domain: a mission design (the file model), what it implies (`evaluate`), launch and
-//! arrival figures, files and exports. Knows nothing of search or of any user interface.
+//! The domain: a mission design (the file model), its edits, the prepared tour, what it implies
+//! (`evaluate`), launch and arrival figures, reports, files and exports. Knows nothing of search or of any user interface.
 //!
 //! Preliminary design only: patched conics with mean-element ephemerides. Confirm every figure in
 //! high-fidelity, independently verified tools before any commitment.
 
 pub mod arrival;
 pub mod design;
+pub mod edit;
 pub mod evaluate;
 pub mod export;
 pub mod files;
 pub mod launch;
+pub mod report;
 pub mod retarget;
+pub mod rules;
+pub mod score;
+pub mod tour;
 
 pub use design::MissionDesign;
-pub use evaluate::{Evaluation, evaluate, evaluate_into};
+pub use edit::{Edit, EditError};
+pub use evaluate::{EvalOptions, Evaluation, evaluate, evaluate_design};
+pub use score::Objective;
+pub use tour::{Body, Catalog, PreparedTour};
 
 /// The program's version (one version for the whole workspace).
 pub const VERSION: &str = env!("CARGO_PKG_VERSION");

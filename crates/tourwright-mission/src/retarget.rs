@@ -1,23 +1,30 @@
 //! Retargeting a shaped swing-by: adjust its periapsis altitude and aim (and, if allowed, the next
-//! stop's epoch) so that the ballistic leg meets the next body again.
+//! stop's epoch) so that the ballistic leg meets the next body again. The miss is computed with
+//! the same shaped-departure and ballistic-leg functions the evaluation uses.
 
-use nalgebra::{DMatrix, DVector};
+use nalgebra::{Matrix3, Vector3};
 
+use tourwright_astro::Vec3;
 use tourwright_astro::constants::{DAY_S, MU_SUN};
 use tourwright_astro::flyby;
-use tourwright_astro::kepler;
 use tourwright_astro::lambert;
-use tourwright_astro::{State, Vec3};
+use tourwright_astro::time::Epoch;
 
 use crate::design::{MissionDesign, SwingbyMode};
-use crate::evaluate::evaluate;
+use crate::evaluate::legs::{ballistic_arrival, shaped_vinf_out};
+use crate::evaluate::{EvalOptions, Evaluation, evaluate};
+use crate::rules;
+use crate::tour::PreparedTour;
 
 /// Why a retarget failed.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 pub enum RetargetError {
     /// The stop is not a shaped swing-by followed by another stop.
-    #[error("stop {0} is not a shaped swing-by with a following stop")]
+    #[error("stop {} is not a shaped swing-by with a following stop", .0 + 1)]
     NotShaped(usize),
+    /// The design cannot be evaluated.
+    #[error("{0}")]
+    Design(String),
     /// The incoming leg could not be evaluated.
     #[error("the incoming leg has no solution")]
     NoIncoming,
@@ -36,7 +43,7 @@ pub struct Retargeted {
 }
 
 /// Adjust the shaped swing-by at stop `k`. With `move_epoch`, the next stop's epoch (and every
-/// later one, by the same shift) may change too.
+/// later one, by the same shift) may change too. Levenberg-Marquardt on the miss vector.
 pub fn retarget(
     d: &MissionDesign,
     k: usize,
@@ -53,60 +60,49 @@ pub fn retarget(
     if k == 0 || k + 1 >= n {
         return Err(RetargetError::NotShaped(k));
     }
-    let e = evaluate(d);
+    let tour = PreparedTour::prepare(d).map_err(|e| RetargetError::Design(e.to_string()))?;
+    let mut e = Evaluation::default();
+    evaluate(&tour, &EvalOptions::SEARCH, &mut e);
     if e.legs.len() < k || !e.legs[..k].iter().all(|l| l.solved) {
         return Err(RetargetError::NoIncoming);
     }
-    let body = d
-        .resolve(&d.stops[k].body)
-        .ok_or(RetargetError::NoIncoming)?;
-    let next = d
-        .resolve(&d.stops[k + 1].body)
-        .ok_or(RetargetError::NoIncoming)?;
-    let data = d.body_data(&body);
+    let data = tour.stops[k].body.data;
+    let next = &tour.stops[k + 1].body;
     let vin = e.stops[k].vinf_in;
     let planet = e.stops[k].body_state;
-    let t_k = d.stops[k].epoch;
-    let tof0 = d.stops[k + 1].epoch.tdb_s - t_k.tdb_s;
+    let t_k = tour.stops[k].t;
+    let tof0 = tour.stops[k + 1].t.0 - t_k.0;
 
-    // Miss vector for (altitude km, aim rad, tof s).
-    let miss = |x: &[f64]| -> Option<Vec3> {
-        let rp = data.radius_km + x[0];
-        if rp <= 0.0 || x[2] <= 0.0 {
+    // Miss vector for (altitude km, aim deg, tof s).
+    let miss = |x: &[f64; 3]| -> Option<Vec3> {
+        if data.radius_km + x[0] <= 0.0 || x[2] <= 0.0 {
             return None;
         }
-        let vout = flyby::outgoing_vinf(&vin, rp, x[1], data.mu);
-        let end = kepler::propagate(
-            &State {
-                r: planet.r,
-                v: planet.v + vout,
-            },
-            x[2],
-            MU_SUN,
-        )
-        .ok()?;
+        let vout = shaped_vinf_out(&data, &vin, x[0], x[1]);
+        let end = ballistic_arrival(&planet, &vout, x[2]).ok()?;
         let target = next.state(t_k.plus_days(x[2] / DAY_S)).ok()?;
-        Some(end.r - target.r)
+        let m = end.r - target.r;
+        m.iter().all(|c| c.is_finite()).then_some(m)
     };
 
     // Starting point: the ballistic swing-by that best matches the Lambert arc's required v∞.
-    let mut x = vec![altitude_km, aim_deg.to_radians(), tof0];
-    if let Ok(target) = next.state(d.stops[k + 1].epoch) {
-        if let Ok(s) = lambert::solve_single(&planet.r, &target.r, tof0, MU_SUN, d.leg(k).direction)
-        {
+    let mut x = [altitude_km, aim_deg, tof0];
+    if let Ok(target) = next.state(tour.stops[k + 1].t) {
+        let dir = tour.legs[k].direction;
+        if let Ok(s) = lambert::solve_single(&planet.r, &target.r, tof0, MU_SUN, dir) {
             let vreq = s.v1 - planet.v;
             let turn = (vin.dot(&vreq) / (vin.norm() * vreq.norm()))
                 .clamp(-1.0, 1.0)
                 .acos();
             if let Some(rp) = flyby::periapsis_for_turn(turn, vin.norm(), data.mu) {
                 let bp = flyby::b_plane(&vin, &vreq, rp, data.mu);
-                let guess = vec![
+                let guess = [
                     (rp - data.radius_km).max(-0.5 * data.radius_km),
-                    bp.aim,
+                    bp.aim.to_degrees(),
                     tof0,
                 ];
-                let cur = miss(&x).map(|m| m.norm()).unwrap_or(f64::INFINITY);
-                if miss(&guess).map(|m| m.norm()).unwrap_or(f64::INFINITY) < cur {
+                let cur = miss(&x).map_or(f64::INFINITY, |m| m.norm());
+                if miss(&guess).map_or(f64::INFINITY, |m| m.norm()) < cur {
                     x = guess;
                 }
             }
@@ -121,34 +117,38 @@ pub fn retarget(
             break;
         }
         // Jacobian by central differences in scaled variables.
-        let mut j = DMatrix::<f64>::zeros(3, nv);
+        let mut j = Matrix3::<f64>::zeros();
+        let mut ok = true;
         for c in 0..nv {
             let h = 1e-6 * scale[c].max(x[c].abs() * 1e-3);
-            let mut xp = x.clone();
-            let mut xm = x.clone();
+            let (mut xp, mut xm) = (x, x);
             xp[c] += h;
             xm[c] -= h;
             let (Some(fp), Some(fm)) = (miss(&xp), miss(&xm)) else {
+                ok = false;
                 break;
             };
-            let col = (fp - fm) / (2.0 * h) * scale[c];
-            for r in 0..3 {
-                j[(r, c)] = col[r];
-            }
+            j.set_column(c, &((fp - fm) / (2.0 * h) * scale[c]));
         }
-        let f = DVector::from_column_slice(cur.as_slice());
+        if !ok {
+            break;
+        }
+        let f = Vector3::from(cur);
         let jt = j.transpose();
         let mut improved = false;
         for _ in 0..12 {
-            let mut a = &jt * &j;
-            for c in 0..nv {
-                a[(c, c)] *= 1.0 + lambda;
-                a[(c, c)] += 1e-12;
+            let mut a = jt * j;
+            for c in 0..3 {
+                if c < nv {
+                    a[(c, c)] = a[(c, c)] * (1.0 + lambda) + 1e-12;
+                } else {
+                    a[(c, c)] = 1.0;
+                }
             }
-            let Some(step) = a.lu().solve(&(-&jt * &f)) else {
+            let Some(step) = a.lu().solve(&(-(jt * f))) else {
                 break;
             };
-            let mut xn = x.clone();
+            let mut xn = x;
             for c in 0..nv {
                 xn[c] += step[c] * scale[c];
             }
@@ -167,23 +167,26 @@ pub fn retarget(
             break;
         }
     }
-    let soi = d.body_data(&next).soi_km.max(1.0e4);
-    if cur.norm() > soi.min(1.0e5) {
+    if cur.norm() > rules::retarget_tolerance_km(&next.data) {
         return Err(RetargetError::NoConvergence(cur.norm()));
     }
     let mut out = d.clone();
     out.stops[k].swingby.mode = SwingbyMode::Shaped {
         altitude_km: x[0],
-        aim_deg: x[1].to_degrees(),
+        aim_deg: (x[1] + 180.0).rem_euclid(360.0) - 180.0,
     };
     if move_epoch {
         let shift = x[2] - tof0;
         for s in out.stops.iter_mut().skip(k + 1) {
-            s.epoch.tdb_s += shift;
+            s.epoch = shift_epoch(s.epoch, shift);
         }
     }
     Ok(Retargeted {
         design: out,
         miss_km: cur.norm(),
     })
+}
+
+fn shift_epoch(e: Epoch, seconds: f64) -> Epoch {
+    e.plus_seconds(seconds)
 }

@@ -10,14 +10,15 @@
 //! the sum of Hohmann times exceeds twice the TOF limit. Repeated bodies (V-V, E-E) are resonant
 //! legs of one revolution.
 
-use crate::direct::hohmann;
+use std::sync::Arc;
+
 use tourwright_astro::bodies::Planet;
 use tourwright_astro::ephemeris::MeanElements;
 use tourwright_astro::time::Epoch;
-use tourwright_mission::design::{
-    LegOptions, MissionDesign, Objective, SearchBounds, Stop, TofBounds,
-};
-use tourwright_mission::evaluate::evaluate;
+use tourwright_astro::transfer::hohmann;
+use tourwright_mission::Objective;
+use tourwright_mission::design::{LegOptions, MissionDesign, SearchBounds, Stop, TofBounds};
+use tourwright_mission::evaluate::evaluate_design;
 
 use crate::job::Progress;
 use crate::optimize::{OptimizeOptions, Problem, optimize};
@@ -180,8 +181,8 @@ pub fn enumerate(spec: &ExploreSpec) -> Vec<Vec<Planet>> {
 pub fn design_for(seq: &[Planet], spec: &ExploreSpec, template: &MissionDesign) -> MissionDesign {
     let mut d = template.clone();
     d.name = format!("{} explored", label(seq));
-    let mid = Epoch::from_tdb_seconds(0.5 * (spec.launch.0.tdb_s + spec.launch.1.tdb_s));
-    let mut t = mid;
+    let (a, b) = (spec.launch.0, spec.launch.1);
+    let mut t = a.plus_seconds(0.5 * (b.tdb().0 - a.tdb().0));
     d.stops = Vec::with_capacity(seq.len());
     d.legs.clear();
     let mut bounds = Vec::new();
@@ -211,8 +212,13 @@ pub fn design_for(seq: &[Planet], spec: &ExploreSpec, template: &MissionDesign) 
     d
 }
 
-/// Run the exploration. Sequences are optimised one after another (each on all cores).
-pub fn explore(spec: &ExploreSpec, template: &MissionDesign, progress: &Progress) -> Exploration {
+/// Run the exploration. Sequences are optimised one after another (each on all cores);
+/// cancelling `progress` stops the inner optimiser too.
+pub fn explore(
+    spec: &ExploreSpec,
+    template: &MissionDesign,
+    progress: &Arc<Progress>,
+) -> Exploration {
     let max_vinf = template.launch.max_c3_km2_s2.map(f64::sqrt).unwrap_or(10.0);
     let max_tof = spec.max_tof_years * 365.25;
     let seqs = enumerate(spec);
@@ -238,9 +244,13 @@ pub fn explore(spec: &ExploreSpec, template: &MissionDesign, progress: &Progress
             i + 1,
             survivors.len()
         ));
-        let d = design_for(s, spec, template);
-        let p = Problem::from_design(&d);
-        let inner = crate::job::Progress::new();
+        let mut d = design_for(s, spec, template);
+        let Ok(p) = Problem::from_design(&d) else {
+            ex.pruned
+                .push((label(s), "the sequence cannot be prepared"));
+            continue;
+        };
+        let inner = progress.child();
         let r = optimize(
             &p,
             &OptimizeOptions {
@@ -252,18 +262,24 @@ pub fn explore(spec: &ExploreSpec, template: &MissionDesign, progress: &Progress
             &inner,
             false,
         );
-        let e = evaluate(&r.design);
+        if inner.is_cancelled() {
+            break;
+        }
+        for (stop, e) in d.stops.iter_mut().zip(&r.epochs) {
+            stop.epoch = *e;
+        }
+        let (_, e) = evaluate_design(&d);
         progress.offer_best(r.value);
         ex.ranked.push(Candidate {
             label: label(s),
-            launch: r.design.stops[0].epoch,
+            launch: d.stops[0].epoch,
             tof_days: e.total_tof_days(),
             c3: e.launch.c3,
             dv_km_s: e.ledger.total_dv_km_s,
             delivered_kg: e.ledger.delivered_mass_kg,
             feasible: e.complete && !e.violates_limits() && spec_tof_ok(&e, max_tof),
             value: r.value,
-            design: r.design,
+            design: d,
         });
         progress.add(1);
     }

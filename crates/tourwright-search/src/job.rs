@@ -6,14 +6,18 @@ use std::sync::Mutex;
 use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::thread::JoinHandle;
 
-/// Progress shared between a job and its watchers.
+/// Progress shared between a job and its watchers: work done, evaluations spent, the best value
+/// so far, a status line, and cancellation. A child progress (for an inner search) has its own
+/// work count but shares its parent's cancellation and adds its evaluations to the parent's.
 #[derive(Debug, Default)]
 pub struct Progress {
     done: AtomicU64,
     total: AtomicU64,
+    evals: AtomicU64,
     best_bits: AtomicU64,
     cancel: AtomicBool,
     message: Mutex<String>,
+    parent: Option<Arc<Progress>>,
 }
 
 impl Progress {
@@ -23,6 +27,31 @@ impl Progress {
         p.best_bits
             .store(f64::INFINITY.to_bits(), Ordering::Relaxed);
         Arc::new(p)
+    }
+
+    /// A progress for inner work: cancelling `self` cancels the child, and the child's
+    /// evaluations count in `self` too.
+    pub fn child(self: &Arc<Self>) -> Arc<Progress> {
+        let p = Progress {
+            parent: Some(self.clone()),
+            ..Default::default()
+        };
+        p.best_bits
+            .store(f64::INFINITY.to_bits(), Ordering::Relaxed);
+        Arc::new(p)
+    }
+
+    /// Count objective evaluations (here and in every ancestor).
+    pub fn count_evals(&self, n: u64) {
+        self.evals.fetch_add(n, Ordering::Relaxed);
+        if let Some(p) = &self.parent {
+            p.count_evals(n);
+        }
+    }
+
+    /// Objective evaluations counted so far (including children's).
+    pub fn evaluations(&self) -> u64 {
+        self.evals.load(Ordering::Relaxed)
     }
     /// Set the amount of work.
     pub fn set_total(&self, n: u64) {
@@ -64,9 +93,10 @@ impl Progress {
     pub fn cancel(&self) {
         self.cancel.store(true, Ordering::Relaxed);
     }
-    /// True once cancellation was asked for.
+    /// True once cancellation was asked for, here or in an ancestor.
     pub fn is_cancelled(&self) -> bool {
         self.cancel.load(Ordering::Relaxed)
+            || self.parent.as_ref().is_some_and(|p| p.is_cancelled())
     }
     /// Set the status line.
     pub fn set_message(&self, m: impl Into<String>) {

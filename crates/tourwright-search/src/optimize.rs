@@ -6,12 +6,13 @@
 
 use rayon::prelude::*;
 
-use crate::direct::compass_search;
-use tourwright_astro::time::Epoch;
-use tourwright_mission::design::{MissionDesign, Objective, SwingbyMode};
-use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate_into};
+use tourwright_astro::time::{Epoch, Tdb};
+use tourwright_mission::design::{MissionDesign, SwingbyMode};
+use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate};
+use tourwright_mission::{Objective, PreparedTour};
 
 use crate::job::Progress;
+use crate::polish::compass_search;
 
 /// A small, fast, seedable generator (xoshiro256**, Blackman & Vigna 2018).
 #[derive(Clone, Debug)]
@@ -57,42 +58,75 @@ impl Rng {
     }
 }
 
+/// Why a design cannot be optimised.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum ProblemError {
+    /// The design cannot be prepared.
+    #[error("{0}")]
+    Design(String),
+    /// A bound is reversed or not a number.
+    #[error("{field}: {reason}")]
+    Bounds {
+        /// The field of the design.
+        field: String,
+        /// Why.
+        reason: String,
+    },
+}
+
 /// An optimisation problem built from a design: bounds, objective and limits.
 #[derive(Clone, Debug)]
 pub struct Problem {
-    /// The design whose epochs are varied (shaped swing-bys are treated as targeted).
-    pub base: MissionDesign,
+    /// The tour whose epochs are varied (shaped swing-bys are treated as targeted).
+    pub tour: PreparedTour,
     /// Lower bounds: launch (MJD2000), then each leg's TOF (days).
     pub lo: Vec<f64>,
     /// Upper bounds.
     pub hi: Vec<f64>,
     /// What is minimised.
     pub objective: Objective,
+    /// Limit on the total time of flight, days.
+    pub max_total_tof_days: Option<f64>,
 }
 
 impl Problem {
     /// The problem a design's search bounds describe.
-    pub fn from_design(d: &MissionDesign) -> Self {
-        let mut base = d.clone();
-        for s in base.stops.iter_mut() {
-            if matches!(s.swingby.mode, SwingbyMode::Shaped { .. }) {
-                s.swingby.mode = SwingbyMode::Targeted;
-            }
+    pub fn from_design(d: &MissionDesign) -> Result<Self, ProblemError> {
+        let mut tour = PreparedTour::prepare(d).map_err(|e| ProblemError::Design(e.to_string()))?;
+        for s in tour.stops.iter_mut() {
+            s.mode = SwingbyMode::Targeted;
         }
         let (a, b) = d.launch_window();
         let mut lo = vec![a.mjd2000()];
         let mut hi = vec![b.mjd2000()];
-        for k in 0..d.stops.len().saturating_sub(1) {
+        let bad = |field: String, reason: &str| ProblemError::Bounds {
+            field,
+            reason: reason.to_string(),
+        };
+        if !(lo[0].is_finite() && hi[0].is_finite() && lo[0] <= hi[0]) {
+            return Err(bad(
+                "search.launch_latest".into(),
+                "the launch window ends before it starts",
+            ));
+        }
+        for k in 0..d.stops.len() - 1 {
             let t = d.tof_bounds(k);
+            if !(t.min_days > 0.0 && t.max_days >= t.min_days && t.max_days.is_finite()) {
+                return Err(bad(
+                    format!("search.leg_tof[{k}]"),
+                    "need 0 < min_days ≤ max_days, both finite",
+                ));
+            }
             lo.push(t.min_days);
             hi.push(t.max_days);
         }
-        Problem {
-            base,
+        Ok(Problem {
+            tour,
             lo,
             hi,
             objective: d.search.objective,
-        }
+            max_total_tof_days: d.search.max_total_tof_days,
+        })
     }
 
     /// Number of variables.
@@ -100,28 +134,27 @@ impl Problem {
         self.lo.len()
     }
 
-    /// Write the epochs of `x` into `d`.
-    pub fn apply(&self, x: &[f64], d: &mut MissionDesign) {
-        let mut t = Epoch::from_mjd2000(x[0]);
-        d.stops[0].epoch = t;
-        for (stop, tof) in d.stops.iter_mut().skip(1).zip(&x[1..]) {
-            t = t.plus_days(*tof);
-            stop.epoch = t;
-        }
+    /// Write the epochs of `x` into `tour`.
+    #[inline]
+    pub fn apply(&self, x: &[f64], tour: &mut PreparedTour) {
+        tour.set_schedule(Tdb::from_mjd2000(x[0]), &x[1..]);
     }
 
-    /// The design at `x`.
-    pub fn design_at(&self, x: &[f64]) -> MissionDesign {
-        let mut d = self.base.clone();
-        self.apply(x, &mut d);
-        d
+    /// The stops' epochs at `x`, each in the scale its design writes it in.
+    pub fn epochs_at(&self, x: &[f64]) -> Vec<Epoch> {
+        let mut t = self.tour.clone();
+        self.apply(x, &mut t);
+        t.stops
+            .iter()
+            .map(|s| Epoch::from_tdb(s.t, s.scale))
+            .collect()
     }
 
-    /// The decision vector of a design's current epochs.
-    pub fn vector_of(&self, d: &MissionDesign) -> Vec<f64> {
-        let mut x = vec![d.stops[0].epoch.mjd2000()];
-        for k in 1..d.stops.len() {
-            x.push(d.stops[k].epoch.days() - d.stops[k - 1].epoch.days());
+    /// The decision vector of a tour's current epochs.
+    pub fn vector_of(&self, tour: &PreparedTour) -> Vec<f64> {
+        let mut x = vec![tour.stops[0].t.mjd2000()];
+        for k in 1..tour.stops.len() {
+            x.push(tour.stops[k].t.days() - tour.stops[k - 1].t.days());
         }
         x
     }
@@ -130,14 +163,10 @@ impl Problem {
     /// the objective's units): altitude deficit 20 km/s per periapsis-radius fraction, C3 excess
     /// 0.1 km/s per km²/s², total-TOF excess 0.01 km/s per day; ×1000 for mass objectives.
     pub fn score(&self, x: &[f64], work: &mut Workspace) -> f64 {
-        self.apply(x, &mut work.design);
-        evaluate_into(
-            &work.design,
-            &EvalOptions { samples_per_leg: 0 },
-            &mut work.eval,
-        );
+        self.apply(x, &mut work.tour);
+        evaluate(&work.tour, &EvalOptions::SEARCH, &mut work.eval);
         let e = &work.eval;
-        let base = e.objective(self.objective);
+        let base = self.objective.value(e);
         if !base.is_finite() {
             return 1e9;
         }
@@ -149,33 +178,30 @@ impl Problem {
                     altitude_km,
                     min_km,
                 } => {
-                    let r = self
-                        .base
-                        .resolve(&self.base.stops[stop].body)
-                        .map(|b| self.base.body_data(&b).radius_km)
-                        .unwrap_or(1.0);
-                    pen += 20.0 * (min_km - altitude_km) / (r + min_km);
+                    let r = self.tour.stops[stop].body.data.radius_km;
+                    pen += 20.0 * (min_km - altitude_km) / (r + min_km).max(1.0);
                 }
                 Warning::C3OverLimit { c3, max } => pen += 0.1 * (c3 - max),
                 Warning::TurnImpossible { .. } => pen += 10.0,
                 _ => {}
             }
         }
-        if let Some(m) = self.base.search.max_total_tof_days {
+        if let Some(m) = self.max_total_tof_days {
             pen += 0.01 * (e.total_tof_days() - m).max(0.0);
         }
         if self.objective == Objective::DeliveredMass {
             pen *= 1000.0;
         }
-        base + pen
+        let v = base + pen;
+        if v.is_finite() { v } else { 1e9 }
     }
 }
 
-/// Scratch space for scoring: a design copy and an evaluation whose buffers are reused.
+/// Scratch space for scoring: a tour copy and an evaluation whose buffers are reused.
 #[derive(Clone, Debug)]
 pub struct Workspace {
-    /// Design copy whose epochs are overwritten.
-    pub design: MissionDesign,
+    /// Tour copy whose epochs are overwritten.
+    pub tour: PreparedTour,
     /// Reused evaluation.
     pub eval: Evaluation,
 }
@@ -184,7 +210,7 @@ impl Workspace {
     /// Scratch for a problem.
     pub fn new(p: &Problem) -> Self {
         Workspace {
-            design: p.base.clone(),
+            tour: p.tour.clone(),
             eval: Evaluation::default(),
         }
     }
@@ -224,8 +250,8 @@ pub struct OptimizeResult {
     pub x: Vec<f64>,
     /// Its penalised score.
     pub value: f64,
-    /// The design at the optimum.
-    pub design: MissionDesign,
+    /// The stops' epochs at the optimum (each in its design's time scale).
+    pub epochs: Vec<Epoch>,
     /// Objective evaluations used.
     pub evaluations: u64,
     /// Trade-off front: (total TOF days, score) pairs, none dominated, sorted by TOF.
@@ -261,7 +287,7 @@ fn add_front(front: &mut Vec<(f64, f64)>, p: (f64, f64)) {
 }
 
 impl Island {
-    fn new(p: &Problem, np: usize, seed: u64) -> Self {
+    fn new(p: &Problem, np: usize, seed: u64, progress: &Progress) -> Self {
         let mut rng = Rng::new(seed);
         let d = p.dim();
         let mut work = Workspace::new(p);
@@ -272,6 +298,7 @@ impl Island {
                 .map(|i| p.lo[i] + rng.uniform() * (p.hi[i] - p.lo[i]))
                 .collect();
             fit.push(p.score(&x, &mut work));
+            progress.count_evals(1);
             pop.push(x);
         }
         let best = fit.iter().copied().fold(f64::INFINITY, f64::min);
@@ -296,7 +323,7 @@ impl Island {
     }
 
     /// One generation of jDE rand/1/bin; returns evaluations used.
-    fn generation(&mut self, p: &Problem, want_front: bool) -> u64 {
+    fn generation(&mut self, p: &Problem, want_front: bool, progress: &Progress) -> u64 {
         let np = self.pop.len();
         let d = p.dim();
         for i in 0..np {
@@ -336,7 +363,11 @@ impl Island {
                     v
                 };
             }
+            if progress.is_cancelled() {
+                return i as u64;
+            }
             let ft = p.score(&self.trial, &mut self.work);
+            progress.count_evals(1);
             if want_front && ft < 1e8 {
                 let tof: f64 = self.trial[1..].iter().sum();
                 add_front(&mut self.front, (tof, ft));
@@ -359,7 +390,7 @@ impl Island {
     }
 
     /// Restart around nothing: keep the best, scatter the rest (after a long stall).
-    fn restart(&mut self, p: &Problem) -> u64 {
+    fn restart(&mut self, p: &Problem, progress: &Progress) -> u64 {
         let keep = self.best_index();
         let d = p.dim();
         let mut n = 0;
@@ -371,6 +402,7 @@ impl Island {
                 self.pop[i][j] = p.lo[j] + self.rng.uniform() * (p.hi[j] - p.lo[j]);
             }
             self.fit[i] = p.score(&self.pop[i], &mut self.work);
+            progress.count_evals(1);
             self.f[i] = 0.5;
             self.cr[i] = 0.9;
             n += 1;
@@ -391,7 +423,7 @@ pub fn optimize(
     let start = std::time::Instant::now();
     let d = p.dim();
     let np = if opts.population > 0 {
-        opts.population
+        opts.population.max(5)
     } else {
         (15 * d).clamp(30, 120)
     };
@@ -404,6 +436,7 @@ pub fn optimize(
                 p,
                 np,
                 opts.seed.wrapping_mul(1_000_003).wrapping_add(k as u64),
+                progress,
             )
         })
         .collect();
@@ -429,9 +462,9 @@ pub fn optimize(
             .map(|isl| {
                 let mut n = 0;
                 for _ in 0..block {
-                    n += isl.generation(p, want_front);
+                    n += isl.generation(p, want_front, progress);
                     if isl.stall > 150 {
-                        n += isl.restart(p);
+                        n += isl.restart(p, progress);
                     }
                 }
                 n
@@ -463,7 +496,7 @@ pub fn optimize(
         progress.set_message(format!("{evals} evaluations, best {best:.4}"));
     }
     // Polish each island's best with a compass search, keep the best result.
-    let polished: Vec<(Vec<f64>, f64)> = islands
+    let polished: Vec<(Vec<f64>, f64, usize)> = islands
         .par_iter_mut()
         .map(|isl| {
             let b = isl.best_index();
@@ -472,20 +505,26 @@ pub fn optimize(
                 .map(|j| ((p.hi[j] - p.lo[j]) * 0.01).max(0.01))
                 .collect();
             let work = &mut isl.work;
-            let mut f = |x: &[f64]| p.score(x, work);
-            let (x, fx) = compass_search(&mut f, &x0, &p.lo, &p.hi, &step, 1e-6, 3_000);
+            let mut f = |x: &[f64]| {
+                if progress.is_cancelled() {
+                    return f64::INFINITY;
+                }
+                progress.count_evals(1);
+                p.score(x, work)
+            };
+            let (x, fx, n) = compass_search(&mut f, &x0, &p.lo, &p.hi, &step, 1e-6, 3_000);
             if fx <= isl.fit[b] {
-                (x, fx)
+                (x, fx, n)
             } else {
-                (x0, isl.fit[b])
+                (x0, isl.fit[b], n)
             }
         })
         .collect();
-    let (x, value) = polished
+    evals += polished.iter().map(|p| p.2 as u64).sum::<u64>();
+    let (x, value, _) = polished
         .into_iter()
         .min_by(|a, b| a.1.total_cmp(&b.1))
-        .expect("at least one island");
-    evals += 3_000 * n_isl as u64;
+        .unwrap_or((p.lo.clone(), f64::INFINITY, 0));
     progress.offer_best(value);
     let mut front = Vec::new();
     for isl in &islands {
@@ -495,7 +534,7 @@ pub fn optimize(
     }
     front.sort_by(|a, b| a.0.total_cmp(&b.0));
     OptimizeResult {
-        design: p.design_at(&x),
+        epochs: p.epochs_at(&x),
         x,
         value,
         evaluations: evals,

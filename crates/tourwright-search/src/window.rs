@@ -1,12 +1,14 @@
 //! Window maps (porkchop plots): a grid over departure date × arrival date (or TOF) for a transfer
 //! between two bodies, with C3, departure and arrival v∞, total Δv for the arrival goal and TOF.
-//! Each cell is a two-stop design scored by the one `evaluate_into`.
+//! Each cell is a two-stop prepared tour scored by the one `evaluate`; the bodies are resolved
+//! once, before the grid.
 
 use rayon::prelude::*;
 
-use tourwright_astro::time::Epoch;
-use tourwright_mission::design::{ArrivalGoal, LegOptions, MissionDesign, Stop};
-use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate_into};
+use tourwright_astro::time::{Epoch, Tdb};
+use tourwright_mission::design::{ArrivalGoal, LegOptions, MissionDesign};
+use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate};
+use tourwright_mission::tour::{Catalog, PreparedTour, TourLeg};
 
 use crate::job::Progress;
 
@@ -110,7 +112,7 @@ pub struct WindowMap {
     /// The specification.
     pub spec: WindowSpec,
     /// Departure epochs of the columns.
-    pub depart: Vec<Epoch>,
+    pub depart: Vec<Tdb>,
     /// Second-axis values of the rows: arrival MJD2000 or TOF days.
     pub second: Vec<f64>,
     /// Cells, `ny` rows of `nx`.
@@ -139,10 +141,10 @@ impl WindowMap {
         best
     }
     /// Departure and arrival epochs of a cell.
-    pub fn epochs(&self, i: usize, j: usize) -> (Epoch, Epoch) {
+    pub fn epochs(&self, i: usize, j: usize) -> (Tdb, Tdb) {
         let t0 = self.depart[i];
         let t1 = match self.spec.second {
-            SecondAxis::Arrival(..) => Epoch::from_mjd2000(self.second[j]),
+            SecondAxis::Arrival(..) => Tdb::from_mjd2000(self.second[j]),
             SecondAxis::Tof(..) => t0.plus_days(self.second[j]),
         };
         (t0, t1)
@@ -175,52 +177,88 @@ impl WindowMap {
     }
 }
 
-/// The two-stop design a window-map cell stands for.
-pub fn cell_design(base: &MissionDesign, spec: &WindowSpec, t0: Epoch, t1: Epoch) -> MissionDesign {
-    let mut d = base.clone();
-    d.stops = vec![
-        Stop {
-            body: spec.from.clone(),
-            epoch: t0,
-            swingby: Default::default(),
-        },
-        Stop {
-            body: spec.to.clone(),
-            epoch: t1,
-            swingby: Default::default(),
-        },
-    ];
-    d.legs = vec![spec.leg];
-    d.arrival = spec.goal;
-    d.launch_vehicle = None;
-    d
+/// Why a map could not be computed.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+pub enum WindowError {
+    /// A body name is unknown.
+    #[error("unknown body '{0}'")]
+    UnknownBody(String),
+    /// The ranges are empty, reversed or not numbers.
+    #[error("{0}")]
+    Range(&'static str),
+    /// The design's user bodies cannot be resolved.
+    #[error("{0}")]
+    Design(String),
+    /// Cancelled.
+    #[error("cancelled")]
+    Cancelled,
 }
 
-/// Compute a map on all cores. `base` supplies user bodies; progress counts rows; cancellation
-/// returns `None`.
-pub fn compute(base: &MissionDesign, spec: &WindowSpec, progress: &Progress) -> Option<WindowMap> {
-    let nx = spec.nx.max(2);
-    let ny = spec.ny.max(2);
-    let depart: Vec<Epoch> = (0..nx)
+/// Compute a map on all cores. `base` supplies user bodies and the ephemeris model; progress
+/// counts rows; cancellation stops within a row.
+pub fn compute(
+    base: &MissionDesign,
+    spec: &WindowSpec,
+    progress: &Progress,
+) -> Result<WindowMap, WindowError> {
+    let nx = spec.nx.clamp(2, 4000);
+    let ny = spec.ny.clamp(2, 4000);
+    let catalog = Catalog::of(base).map_err(|e| WindowError::Design(e.to_string()))?;
+    let body = |n: &str| {
+        catalog
+            .body(n)
+            .ok_or_else(|| WindowError::UnknownBody(n.to_string()))
+    };
+    let (from, to) = (body(&spec.from)?, body(&spec.to)?);
+    let (d0, d1) = (spec.depart.0.tdb(), spec.depart.1.tdb());
+    if !(d1.0 > d0.0) {
+        return Err(WindowError::Range(
+            "departure range: the end must be after the start",
+        ));
+    }
+    match spec.second {
+        SecondAxis::Arrival(a, b) if !(b.tdb().0 > a.tdb().0) => {
+            return Err(WindowError::Range(
+                "arrival range: the end must be after the start",
+            ));
+        }
+        SecondAxis::Tof(a, b) if !(a > 0.0 && b > a && b.is_finite()) => {
+            return Err(WindowError::Range("TOF range must have 0 < min < max"));
+        }
+        _ => {}
+    }
+    let depart: Vec<Tdb> = (0..nx)
         .map(|i| {
             let f = i as f64 / (nx - 1) as f64;
-            Epoch::from_tdb_seconds(
-                spec.depart.0.tdb_s + f * (spec.depart.1.tdb_s - spec.depart.0.tdb_s),
-            )
+            Tdb(d0.0 + f * (d1.0 - d0.0))
         })
         .collect();
     let second: Vec<f64> = (0..ny)
         .map(|j| {
             let f = j as f64 / (ny - 1) as f64;
             match spec.second {
-                SecondAxis::Arrival(a, b) => a.mjd2000() + f * (b.mjd2000() - a.mjd2000()),
+                SecondAxis::Arrival(a, b) => {
+                    let (a, b) = (a.tdb().mjd2000(), b.tdb().mjd2000());
+                    a + f * (b - a)
+                }
                 SecondAxis::Tof(a, b) => a + f * (b - a),
             }
         })
         .collect();
     progress.set_total(ny as u64);
-    let template = cell_design(base, spec, spec.depart.0, spec.depart.0.plus_days(100.0));
-    let opts = EvalOptions { samples_per_leg: 0 };
+    let mut template = PreparedTour::two_stop(
+        from,
+        to,
+        d0,
+        d0.plus_days(100.0),
+        TourLeg {
+            revs: spec.leg.revolutions,
+            branch: spec.leg.branch,
+            direction: spec.leg.direction,
+        },
+    );
+    template.arrival = spec.goal;
+    let opts = EvalOptions::SEARCH;
     let rows: Option<Vec<Vec<Cell>>> = (0..ny)
         .into_par_iter()
         .map_init(
@@ -232,17 +270,17 @@ pub fn compute(base: &MissionDesign, spec: &WindowSpec, progress: &Progress) -> 
                 let mut row = Vec::with_capacity(nx);
                 for t0 in depart.iter() {
                     let t1 = match spec.second {
-                        SecondAxis::Arrival(..) => Epoch::from_mjd2000(second[j]),
+                        SecondAxis::Arrival(..) => Tdb::from_mjd2000(second[j]),
                         SecondAxis::Tof(..) => t0.plus_days(second[j]),
                     };
                     let mut c = Cell {
                         tof_days: t1.days() - t0.days(),
                         ..Default::default()
                     };
-                    if t1.tdb_s > t0.tdb_s {
-                        d.stops[0].epoch = *t0;
-                        d.stops[1].epoch = t1;
-                        evaluate_into(d, &opts, e);
+                    if t1.0 > t0.0 {
+                        d.stops[0].t = *t0;
+                        d.stops[1].t = t1;
+                        evaluate(d, &opts, e);
                         if e.complete {
                             c.c3 = e.launch.c3;
                             c.vinf_depart = e.launch.vinf;
@@ -253,13 +291,18 @@ pub fn compute(base: &MissionDesign, spec: &WindowSpec, progress: &Progress) -> 
                     }
                     row.push(c);
                 }
+                progress.count_evals(nx as u64);
                 progress.add(1);
                 Some(row)
             },
         )
         .collect();
-    let cells = rows?.into_iter().flatten().collect();
-    Some(WindowMap {
+    let cells = rows
+        .ok_or(WindowError::Cancelled)?
+        .into_iter()
+        .flatten()
+        .collect();
+    Ok(WindowMap {
         spec: WindowSpec {
             nx,
             ny,

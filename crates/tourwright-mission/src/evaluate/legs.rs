@@ -1,0 +1,217 @@
+//! Legs: the bodies' states at the stops, Lambert arcs between stops, the ballistic leg after a
+//! shaped swing-by, drawing samples and the closest approach to the next body.
+
+use tourwright_astro::bodies::BodyData;
+use tourwright_astro::constants::{DAY_S, MU_SUN};
+use tourwright_astro::flyby;
+use tourwright_astro::kepler::{self, KeplerError};
+use tourwright_astro::lambert;
+use tourwright_astro::time::Tdb;
+use tourwright_astro::{State, Vec3};
+
+use super::{EvalOptions, Evaluation, LegResult, Sample, StopResult, Warning};
+use crate::design::SwingbyMode;
+use crate::rules;
+use crate::tour::{Body, PreparedTour};
+
+/// Fill one `StopResult` per stop with its epoch and the body's state. False (with warnings)
+/// when a state is unavailable or the stops are out of time order.
+pub fn body_states(tour: &PreparedTour, out: &mut Evaluation) -> bool {
+    let mut ok = true;
+    for (k, stop) in tour.stops.iter().enumerate() {
+        let mut sr = StopResult {
+            kind: stop.kind,
+            epoch: stop.t,
+            ..Default::default()
+        };
+        if k > 0 && !(stop.t.0 > tour.stops[k - 1].t.0) {
+            out.warnings.push(Warning::OutOfOrder { stop: k });
+            ok = false;
+        }
+        match stop.body.state(stop.t) {
+            Ok(s) => sr.body_state = s,
+            Err(e) => {
+                out.warnings.push(Warning::Ephemeris { stop: k, reason: e });
+                ok = false;
+            }
+        }
+        out.stops.push(sr);
+    }
+    ok
+}
+
+/// Outgoing v∞ of a shaped (unpowered) swing-by at periapsis altitude `altitude_km` and B-plane
+/// aim `aim_deg`. A massless body or a zero v∞ turns nothing.
+pub fn shaped_vinf_out(body: &BodyData, vinf_in: &Vec3, altitude_km: f64, aim_deg: f64) -> Vec3 {
+    let rp = body.radius_km + altitude_km;
+    if body.mu > 0.0 && vinf_in.norm() > 0.0 && rp > 0.0 {
+        flyby::outgoing_vinf(vinf_in, rp, aim_deg.to_radians(), body.mu)
+    } else {
+        *vinf_in
+    }
+}
+
+/// The ballistic leg after a shaped swing-by: the planet's state plus v∞ out, flown for `tof_s`.
+pub fn ballistic_arrival(
+    planet: &State,
+    vinf_out: &Vec3,
+    tof_s: f64,
+) -> Result<State, KeplerError> {
+    kepler::propagate(
+        &State {
+            r: planet.r,
+            v: planet.v + vinf_out,
+        },
+        tof_s,
+        MU_SUN,
+    )
+}
+
+/// Solve leg `k` and fill both stops' heliocentric velocities and v∞. False (with a warning) when
+/// the leg has no solution; evaluation stops there.
+pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluation) -> bool {
+    let (a, b) = (&tour.stops[k], &tour.stops[k + 1]);
+    let tof = b.t.0 - a.t.0;
+    let from = out.stops[k].body_state;
+    let to = out.stops[k + 1].body_state;
+    let mut leg = LegResult {
+        tof_days: tof / DAY_S,
+        ..Default::default()
+    };
+    let shaped = match a.mode {
+        SwingbyMode::Shaped {
+            altitude_km,
+            aim_deg,
+        } if k > 0 => Some((altitude_km, aim_deg)),
+        _ => None,
+    };
+    if let Some((alt, aim)) = shaped {
+        let vout = shaped_vinf_out(&a.body.data, &out.stops[k].vinf_in, alt, aim);
+        match ballistic_arrival(&from, &vout, tof) {
+            Ok(end) => {
+                leg.v_depart = from.v + vout;
+                leg.v_arrive = end.v;
+                leg.arrive_state = end;
+                leg.solved = true;
+                leg.ballistic = true;
+            }
+            Err(e) => out
+                .warnings
+                .push(Warning::NoBallisticArc { leg: k, reason: e }),
+        }
+    } else {
+        let l = &tour.legs[k];
+        match lambert::solve_revs(&from.r, &to.r, tof, MU_SUN, l.direction, l.revs, l.branch) {
+            Ok(s) => {
+                leg.v_depart = s.v1;
+                leg.v_arrive = s.v2;
+                leg.arrive_state = State { r: to.r, v: s.v2 };
+                leg.solved = true;
+            }
+            Err(e) => out.warnings.push(Warning::NoArc { leg: k, reason: e }),
+        }
+    }
+    if !leg.solved {
+        out.legs.push(leg);
+        return false;
+    }
+    leg.samples = push_samples(
+        out,
+        a.t,
+        State {
+            r: from.r,
+            v: leg.v_depart,
+        },
+        tof,
+        opts.samples_per_leg,
+    );
+    out.stops[k].v_helio_out = leg.v_depart;
+    out.stops[k].vinf_out = leg.v_depart - from.v;
+    out.stops[k + 1].v_helio_in = leg.v_arrive;
+    out.stops[k + 1].vinf_in = leg.v_arrive - to.v;
+    let arrive = leg.arrive_state;
+    let depart = State {
+        r: from.r,
+        v: leg.v_depart,
+    };
+    out.legs.push(leg);
+    if shaped.is_some() {
+        let miss = (arrive.r - to.r).norm();
+        let closest = closest_approach(&depart, a.t, tof, &b.body);
+        if let Some(sw) = out.stops[k].swingby.as_mut() {
+            sw.miss_km = rules::shown(miss);
+            sw.closest_approach = closest;
+        }
+        if rules::misses(miss, &b.body.data) {
+            out.warnings.push(Warning::MissesNextBody {
+                stop: k,
+                miss_km: miss,
+            });
+        }
+    }
+    true
+}
+
+/// Drawing samples of one arc, equally spaced in time; returns their range in `out.samples`.
+fn push_samples(
+    out: &mut Evaluation,
+    t0: Tdb,
+    s0: State,
+    tof: f64,
+    m: usize,
+) -> std::ops::Range<usize> {
+    let start = out.samples.len();
+    if m >= 2 {
+        let dt = tof / (m - 1) as f64;
+        let mut cur = s0;
+        for j in 0..m {
+            if j > 0 {
+                // A failed step keeps the previous point: the drawing stays finite.
+                cur = kepler::propagate(&cur, dt, MU_SUN).unwrap_or(cur);
+            }
+            out.samples.push(Sample {
+                t: Tdb(t0.0 + dt * j as f64),
+                state: cur,
+            });
+        }
+    }
+    start..out.samples.len()
+}
+
+/// Closest approach of an arc to a body: a coarse scan of 64 steps, then golden-section
+/// refinement around the best one.
+pub fn closest_approach(depart: &State, t0: Tdb, tof: f64, body: &Body) -> Option<(f64, Tdb)> {
+    let dist = |dt: f64| -> Option<f64> {
+        let sc = kepler::propagate(depart, dt, MU_SUN).ok()?;
+        let b = body.state(Tdb(t0.0 + dt)).ok()?;
+        Some((sc.r - b.r).norm())
+    };
+    let m = 64;
+    let mut best = (f64::INFINITY, 0.0);
+    for j in 0..=m {
+        let dt = tof * j as f64 / m as f64;
+        if let Some(d) = dist(dt) {
+            if d < best.0 {
+                best = (d, dt);
+            }
+        }
+    }
+    if !best.0.is_finite() {
+        return None;
+    }
+    let h = tof / m as f64;
+    let (mut a, mut b) = ((best.1 - h).max(0.0), (best.1 + h).min(tof));
+    let g = 0.618_033_988_749_895;
+    for _ in 0..40 {
+        let c = b - g * (b - a);
+        let d = a + g * (b - a);
+        if dist(c)? < dist(d)? {
+            b = d;
+        } else {
+            a = c;
+        }
+    }
+    let t = 0.5 * (a + b);
+    let d = rules::shown(dist(t)?)?;
+    Some((d, Tdb(t0.0 + t)))
+}

@@ -1,0 +1,485 @@
+//! `evaluate`: from a prepared tour to everything it implies. The GUI, the CLI, the optimiser and
+//! the tests all go through [`evaluate`]; it reuses the buffers of the `Evaluation` it is given,
+//! so repeated evaluation (dragging a swing-by, optimising) allocates nothing once warm.
+//!
+//! The work is split by concern: [`legs`] (Lambert arcs, shaped swing-by departures, ballistic
+//! legs, drawing samples), [`swingby`] (the figures at each swing-by), [`budget`] (launch,
+//! arrival, heliocentric energies and the Δv/mass ledger). No figure leaves as NaN or infinity:
+//! what cannot be computed is absent, and a warning says why.
+
+pub mod budget;
+pub mod legs;
+pub mod swingby;
+
+use std::fmt;
+
+use tourwright_astro::ephemeris::EphemerisError;
+use tourwright_astro::flyby::BPlane;
+use tourwright_astro::kepler::KeplerError;
+use tourwright_astro::lambert::LambertError;
+use tourwright_astro::time::Tdb;
+use tourwright_astro::{State, Vec3};
+
+use crate::design::MissionDesign;
+use crate::tour::PreparedTour;
+pub use crate::tour::StopKind;
+
+/// Swing-by figures of one stop. Figures that do not exist for this swing-by (no periapsis when
+/// no turn is needed, no hyperbola at a massless body) are `None`.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct SwingbyResult {
+    /// True when the designer set altitude and aim (the next leg is ballistic).
+    pub shaped: bool,
+    /// Periapsis radius, km.
+    pub rp_km: Option<f64>,
+    /// Periapsis altitude, km.
+    pub altitude_km: Option<f64>,
+    /// Minimum altitude in force, km.
+    pub min_altitude_km: f64,
+    /// Turn angle between v∞ in and v∞ out, rad.
+    pub turn_rad: f64,
+    /// Largest ballistic turn available at the minimum altitude with the incoming v∞, rad.
+    pub turn_available_rad: Option<f64>,
+    /// Impulse at periapsis (powered swing-by), km/s.
+    pub powered_dv_km_s: f64,
+    /// Eccentricity of the incoming hyperbola.
+    pub e_in: Option<f64>,
+    /// Eccentricity of the outgoing hyperbola.
+    pub e_out: Option<f64>,
+    /// B-plane of the incoming hyperbola.
+    pub bplane: Option<BPlane>,
+    /// |v∞out − v∞in|: the velocity change the planet gave, km/s.
+    pub planet_dv_km_s: f64,
+    /// For a shaped swing-by: distance from the next body at the next stop's epoch, km.
+    pub miss_km: Option<f64>,
+    /// For a shaped swing-by: closest approach to the next body on the leg (km, epoch).
+    pub closest_approach: Option<(f64, Tdb)>,
+}
+
+/// Per-stop results.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct StopResult {
+    /// Role in the tour.
+    pub kind: StopKind,
+    /// Epoch of the encounter.
+    pub epoch: Tdb,
+    /// The body's heliocentric state.
+    pub body_state: State,
+    /// Heliocentric velocity arriving (zero at launch), km/s.
+    pub v_helio_in: Vec3,
+    /// Heliocentric velocity leaving (zero at arrival), km/s.
+    pub v_helio_out: Vec3,
+    /// v∞ arriving (zero at launch), km/s.
+    pub vinf_in: Vec3,
+    /// v∞ leaving (zero at arrival), km/s.
+    pub vinf_out: Vec3,
+    /// Swing-by figures (swing-bys only).
+    pub swingby: Option<SwingbyResult>,
+    /// Heliocentric specific energy before the stop, km²/s² (after, at launch).
+    pub energy_before: f64,
+    /// Heliocentric specific energy after the stop, km²/s² (before, at arrival).
+    pub energy_after: f64,
+    /// Heliocentric speed before, km/s.
+    pub speed_before: f64,
+    /// Heliocentric speed after, km/s.
+    pub speed_after: f64,
+    /// Spacecraft Δv spent at this stop, km/s.
+    pub dv_km_s: f64,
+    /// Spacecraft mass after this stop, kg.
+    pub mass_after_kg: f64,
+}
+
+impl StopResult {
+    /// Energy gained at the stop (the swing-by's "gain"), km²/s².
+    pub fn gain(&self) -> f64 {
+        self.energy_after - self.energy_before
+    }
+
+    /// The v∞ that characterises the stop: leaving at launch, arriving elsewhere.
+    pub fn vinf(&self) -> f64 {
+        if self.kind == StopKind::Launch {
+            self.vinf_out.norm()
+        } else {
+            self.vinf_in.norm()
+        }
+    }
+}
+
+/// Per-leg results.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct LegResult {
+    /// Time of flight, days.
+    pub tof_days: f64,
+    /// Heliocentric velocity at departure, km/s.
+    pub v_depart: Vec3,
+    /// Heliocentric velocity on arrival, km/s.
+    pub v_arrive: Vec3,
+    /// Heliocentric state on arrival (differs from the body's position after a shaped swing-by).
+    pub arrive_state: State,
+    /// False when no arc could be found (see warnings).
+    pub solved: bool,
+    /// True when flown ballistically after a shaped swing-by.
+    pub ballistic: bool,
+    /// Range of this leg's points in `Evaluation::samples`.
+    pub samples: std::ops::Range<usize>,
+}
+
+/// One point of the trajectory for drawing and export.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct Sample {
+    /// Epoch.
+    pub t: Tdb,
+    /// Heliocentric state.
+    pub state: State,
+}
+
+/// Launch figures.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct LaunchResult {
+    /// C3, km²/s².
+    pub c3: f64,
+    /// v∞, km/s.
+    pub vinf: f64,
+    /// Declination of the launch asymptote, degrees (Earth mean equator J2000).
+    pub dla_deg: f64,
+    /// Right ascension of the launch asymptote, degrees.
+    pub rla_deg: f64,
+    /// Mass the launch vehicle injects at this C3, kg.
+    pub injected_mass_kg: Option<f64>,
+}
+
+/// Arrival figures.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct ArrivalResult {
+    /// v∞ on arrival, km/s.
+    pub vinf: f64,
+    /// Δv for the arrival goal, km/s.
+    pub dv_km_s: f64,
+}
+
+/// The Δv and mass budget.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct Ledger {
+    /// Sum of spacecraft Δv, km/s.
+    pub total_dv_km_s: f64,
+    /// Wet mass at launch (dry + propellant), kg.
+    pub wet_mass_kg: f64,
+    /// Propellant the Δv needs from the wet mass, kg.
+    pub propellant_needed_kg: f64,
+    /// Propellant loaded minus needed, kg.
+    pub propellant_margin_kg: f64,
+    /// Mass after the last manoeuvre, kg.
+    pub final_mass_kg: f64,
+    /// Launch-vehicle capacity minus wet mass, kg.
+    pub lv_margin_kg: Option<f64>,
+    /// Mass delivered after all manoeuvres when the launch vehicle is filled to capacity, kg.
+    pub delivered_mass_kg: Option<f64>,
+}
+
+/// Something the designer should know, with its reason.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Warning {
+    /// The design could not be prepared (a field and a reason).
+    Design {
+        /// The field.
+        field: String,
+        /// Why.
+        reason: String,
+    },
+    /// No Lambert arc for a leg.
+    NoArc {
+        /// Leg index.
+        leg: usize,
+        /// Why.
+        reason: LambertError,
+    },
+    /// The ballistic leg after a shaped swing-by could not be propagated.
+    NoBallisticArc {
+        /// Leg index.
+        leg: usize,
+        /// Why.
+        reason: KeplerError,
+    },
+    /// The ephemeris cannot give a body's state.
+    Ephemeris {
+        /// Stop index.
+        stop: usize,
+        /// Why.
+        reason: EphemerisError,
+    },
+    /// A stop is not after the one before it.
+    OutOfOrder {
+        /// Stop index.
+        stop: usize,
+    },
+    /// Periapsis below the minimum altitude.
+    AltitudeBelowMinimum {
+        /// Stop index.
+        stop: usize,
+        /// Altitude, km.
+        altitude_km: f64,
+        /// Minimum, km.
+        min_km: f64,
+    },
+    /// The required turn cannot be made (v∞ reversal or zero v∞).
+    TurnImpossible {
+        /// Stop index.
+        stop: usize,
+    },
+    /// C3 over the launch limit.
+    C3OverLimit {
+        /// C3, km²/s².
+        c3: f64,
+        /// Limit.
+        max: f64,
+    },
+    /// DLA outside the acceptable band.
+    DlaOutOfRange {
+        /// DLA, degrees.
+        dla: f64,
+    },
+    /// C3 outside the launch-vehicle table (value extrapolated).
+    OutsideLvTable {
+        /// C3, km²/s².
+        c3: f64,
+    },
+    /// Not enough propellant.
+    PropellantShort {
+        /// Needed, kg.
+        needed_kg: f64,
+        /// Loaded, kg.
+        loaded_kg: f64,
+    },
+    /// The launch vehicle cannot lift the wet mass at this C3.
+    LvCapacityShort {
+        /// Capacity, kg.
+        capacity_kg: f64,
+        /// Wet mass, kg.
+        wet_kg: f64,
+    },
+    /// A shaped swing-by's ballistic leg misses the next body.
+    MissesNextBody {
+        /// Stop index of the shaped swing-by.
+        stop: usize,
+        /// Miss distance at the next epoch, km.
+        miss_km: f64,
+    },
+    /// A figure came out as a non-finite number and was dropped.
+    NotFinite {
+        /// Which figure.
+        what: &'static str,
+    },
+}
+
+impl fmt::Display for Warning {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Warning::Design { field, reason } => write!(f, "{field}: {reason}"),
+            Warning::NoArc { leg, reason } => write!(f, "leg {}: no arc ({reason})", leg + 1),
+            Warning::NoBallisticArc { leg, reason } => {
+                write!(f, "leg {}: the ballistic arc fails ({reason})", leg + 1)
+            }
+            Warning::Ephemeris { stop, reason } => write!(f, "stop {}: {reason}", stop + 1),
+            Warning::OutOfOrder { stop } => {
+                write!(f, "stop {}: epoch is not after the previous stop", stop + 1)
+            }
+            Warning::AltitudeBelowMinimum {
+                stop,
+                altitude_km,
+                min_km,
+            } => write!(
+                f,
+                "stop {}: periapsis altitude {altitude_km:.0} km is below the minimum {min_km:.0} km",
+                stop + 1
+            ),
+            Warning::TurnImpossible { stop } => write!(
+                f,
+                "stop {}: the required turn cannot be made by a swing-by",
+                stop + 1
+            ),
+            Warning::C3OverLimit { c3, max } => write!(
+                f,
+                "launch C3 {c3:.2} km²/s² is over the limit {max:.2} km²/s²"
+            ),
+            Warning::DlaOutOfRange { dla } => write!(
+                f,
+                "launch declination {dla:.1}° is outside the accepted band"
+            ),
+            Warning::OutsideLvTable { c3 } => write!(
+                f,
+                "C3 {c3:.2} km²/s² is outside the launch-vehicle table; mass is extrapolated"
+            ),
+            Warning::PropellantShort {
+                needed_kg,
+                loaded_kg,
+            } => write!(
+                f,
+                "propellant short: {needed_kg:.0} kg needed, {loaded_kg:.0} kg loaded"
+            ),
+            Warning::LvCapacityShort {
+                capacity_kg,
+                wet_kg,
+            } => write!(
+                f,
+                "launch vehicle injects {capacity_kg:.0} kg at this C3, spacecraft is {wet_kg:.0} kg"
+            ),
+            Warning::MissesNextBody { stop, miss_km } => write!(
+                f,
+                "stop {}: the shaped swing-by misses the next body by {:.0} km",
+                stop + 1,
+                miss_km
+            ),
+            Warning::NotFinite { what } => {
+                write!(f, "{what} could not be computed (not a finite number)")
+            }
+        }
+    }
+}
+
+impl Warning {
+    /// True for a broken hard limit (altitude, turn, C3, declination): a search treats these as
+    /// constraints and the explorer marks such tours as not feasible.
+    pub fn is_limit(&self) -> bool {
+        matches!(
+            self,
+            Warning::AltitudeBelowMinimum { .. }
+                | Warning::C3OverLimit { .. }
+                | Warning::TurnImpossible { .. }
+                | Warning::DlaOutOfRange { .. }
+        )
+    }
+}
+
+/// Options of an evaluation.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct EvalOptions {
+    /// Trajectory points per leg for drawing and export (0 for none, as in search).
+    pub samples_per_leg: usize,
+}
+
+impl Default for EvalOptions {
+    fn default() -> Self {
+        EvalOptions {
+            samples_per_leg: 240,
+        }
+    }
+}
+
+impl EvalOptions {
+    /// No drawing samples (search).
+    pub const SEARCH: EvalOptions = EvalOptions { samples_per_leg: 0 };
+}
+
+/// Everything a tour implies.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct Evaluation {
+    /// True when every leg was solved and every stop evaluated.
+    pub complete: bool,
+    /// Per stop.
+    pub stops: Vec<StopResult>,
+    /// Per leg.
+    pub legs: Vec<LegResult>,
+    /// Launch.
+    pub launch: LaunchResult,
+    /// Arrival.
+    pub arrival: ArrivalResult,
+    /// Budget.
+    pub ledger: Ledger,
+    /// Warnings, in words on display.
+    pub warnings: Vec<Warning>,
+    /// Trajectory points of every leg (see `LegResult::samples`).
+    pub samples: Vec<Sample>,
+}
+
+impl Evaluation {
+    /// Total time of flight, days.
+    pub fn total_tof_days(&self) -> f64 {
+        match (self.stops.first(), self.stops.last()) {
+            (Some(a), Some(b)) => (b.epoch.0 - a.epoch.0) / 86_400.0,
+            _ => 0.0,
+        }
+    }
+
+    /// The spacecraft's heliocentric position at `t`, interpolated between drawing samples
+    /// (clamped to the first and last sample).
+    pub fn position_at(&self, t: Tdb) -> Option<Vec3> {
+        let s = &self.samples;
+        let first = s.first()?;
+        let i = s.partition_point(|x| x.t.0 < t.0);
+        if i == 0 {
+            return Some(first.state.r);
+        }
+        let Some(b) = s.get(i) else {
+            return s.last().map(|l| l.state.r);
+        };
+        let a = &s[i - 1];
+        let f = if b.t.0 > a.t.0 {
+            (t.0 - a.t.0) / (b.t.0 - a.t.0)
+        } else {
+            0.0
+        };
+        Some(a.state.r + (b.state.r - a.state.r) * f)
+    }
+
+    /// True when a warning says the tour breaks a hard limit.
+    pub fn violates_limits(&self) -> bool {
+        self.warnings.iter().any(Warning::is_limit)
+    }
+
+    fn reset(&mut self) {
+        self.complete = false;
+        self.stops.clear();
+        self.legs.clear();
+        self.warnings.clear();
+        self.samples.clear();
+        self.launch = LaunchResult::default();
+        self.arrival = ArrivalResult::default();
+        self.ledger = Ledger::default();
+    }
+}
+
+/// Evaluate a prepared tour into `out`, reusing its buffers.
+pub fn evaluate(tour: &PreparedTour, opts: &EvalOptions, out: &mut Evaluation) {
+    out.reset();
+    if !legs::body_states(tour, out) {
+        return;
+    }
+    let n = tour.stops.len();
+    // Legs in order: a shaped swing-by needs its incoming v∞ before the next leg.
+    for k in 0..n - 1 {
+        if !legs::leg(tour, k, opts, out) {
+            return;
+        }
+        if k + 1 < n - 1 {
+            swingby::prepare(tour, k + 1, out);
+        }
+    }
+    for k in 1..n - 1 {
+        swingby::finish(tour, k, out);
+    }
+    budget::launch(tour, out);
+    budget::arrival(tour, out);
+    budget::energies(out);
+    budget::ledger(tour, out);
+    out.complete = out.legs.len() == n - 1 && out.legs.iter().all(|l| l.solved);
+    budget::drop_non_finite(out);
+}
+
+/// Prepare and evaluate a design with default options. A design that cannot be prepared gives
+/// an incomplete evaluation whose warning names the field and the reason.
+pub fn evaluate_design(design: &MissionDesign) -> (Option<PreparedTour>, Evaluation) {
+    let mut out = Evaluation::default();
+    match PreparedTour::prepare(design) {
+        Ok(t) => {
+            evaluate(&t, &EvalOptions::default(), &mut out);
+            (Some(t), out)
+        }
+        Err(e) => {
+            out.warnings.push(Warning::Design {
+                field: e.field,
+                reason: e.reason,
+            });
+            (None, out)
+        }
+    }
+}

@@ -1,0 +1,507 @@
+//! One report, many renderings: the event table (one row per stop) and the ledger (one row per
+//! manoeuvre, then the totals) are built here once from a prepared tour and its evaluation, then
+//! rendered as text (CLI), CSV (exports), JSON (CLI) and a grid (the GUI ledger).
+
+use std::fmt::Write as _;
+
+use serde_json::{Map, Value, json};
+
+use crate::evaluate::{Evaluation, StopKind};
+use crate::rules::shown;
+use crate::tour::PreparedTour;
+
+/// A column: its machine key (CSV header, JSON field), its header for people, and how many
+/// decimals numbers get.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Column {
+    /// Machine key with the unit in it, e.g. `vinf_in_km_s`.
+    pub key: &'static str,
+    /// Header for people, e.g. `v∞ in (km/s)`.
+    pub header: &'static str,
+    /// Decimals in text and in the GUI.
+    pub decimals: usize,
+}
+
+/// One cell.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Cell {
+    /// Words.
+    Text(String),
+    /// A number, or nothing when the figure does not apply or cannot be computed.
+    Num(Option<f64>),
+}
+
+impl Cell {
+    /// The cell for people: text, a number to the column's decimals, or an em dash.
+    pub fn display(&self, decimals: usize) -> String {
+        match self {
+            Cell::Text(t) => t.clone(),
+            Cell::Num(Some(x)) => format!("{x:.decimals$}"),
+            Cell::Num(None) => "—".into(),
+        }
+    }
+
+    /// The number, if any.
+    pub fn num(&self) -> Option<f64> {
+        match self {
+            Cell::Num(x) => *x,
+            Cell::Text(_) => None,
+        }
+    }
+}
+
+/// A table of rows under columns.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct Table {
+    /// Columns.
+    pub columns: Vec<Column>,
+    /// Rows, each as long as `columns`.
+    pub rows: Vec<Vec<Cell>>,
+}
+
+impl Table {
+    /// The same rows with only some columns, in the order given.
+    pub fn select(&self, columns: &[usize]) -> Table {
+        Table {
+            columns: columns
+                .iter()
+                .filter_map(|&c| self.columns.get(c).copied())
+                .collect(),
+            rows: self
+                .rows
+                .iter()
+                .map(|r| columns.iter().filter_map(|&c| r.get(c).cloned()).collect())
+                .collect(),
+        }
+    }
+
+    /// Aligned text with a header line (numbers right-aligned).
+    pub fn to_text(&self) -> String {
+        let cells: Vec<Vec<String>> = self
+            .rows
+            .iter()
+            .map(|r| {
+                r.iter()
+                    .zip(&self.columns)
+                    .map(|(c, col)| c.display(col.decimals))
+                    .collect()
+            })
+            .collect();
+        let widths: Vec<usize> = self
+            .columns
+            .iter()
+            .enumerate()
+            .map(|(i, c)| {
+                cells
+                    .iter()
+                    .map(|r| r[i].chars().count())
+                    .chain(std::iter::once(c.header.chars().count()))
+                    .max()
+                    .unwrap_or(0)
+            })
+            .collect();
+        let mut s = String::new();
+        let pad = |s: &mut String, text: &str, w: usize, right: bool| {
+            let n = w.saturating_sub(text.chars().count());
+            if right {
+                s.push_str(&" ".repeat(n));
+                s.push_str(text);
+            } else {
+                s.push_str(text);
+                s.push_str(&" ".repeat(n));
+            }
+        };
+        for (i, c) in self.columns.iter().enumerate() {
+            if i > 0 {
+                s.push_str("  ");
+            }
+            pad(&mut s, c.header, widths[i], false);
+        }
+        s.push('\n');
+        for (r, row) in cells.iter().enumerate() {
+            for (i, text) in row.iter().enumerate() {
+                if i > 0 {
+                    s.push_str("  ");
+                }
+                let right = matches!(self.rows[r][i], Cell::Num(_));
+                pad(&mut s, text, widths[i], right);
+            }
+            s.push('\n');
+        }
+        s
+    }
+
+    /// CSV with the machine keys as header; numbers at full precision, absent figures empty.
+    pub fn to_csv(&self) -> String {
+        let mut s = self
+            .columns
+            .iter()
+            .map(|c| c.key)
+            .collect::<Vec<_>>()
+            .join(",");
+        s.push('\n');
+        for row in &self.rows {
+            let line: Vec<String> = row
+                .iter()
+                .map(|c| match c {
+                    Cell::Text(t) => csv_field(t),
+                    Cell::Num(Some(x)) => format!("{x}"),
+                    Cell::Num(None) => String::new(),
+                })
+                .collect();
+            let _ = writeln!(s, "{}", line.join(","));
+        }
+        s
+    }
+
+    /// Tab-separated text with the human headers (for the clipboard).
+    pub fn to_tsv(&self) -> String {
+        let mut s = self
+            .columns
+            .iter()
+            .map(|c| c.header)
+            .collect::<Vec<_>>()
+            .join("\t");
+        s.push('\n');
+        for row in &self.rows {
+            let line: Vec<String> = row
+                .iter()
+                .zip(&self.columns)
+                .map(|(c, col)| match c {
+                    Cell::Num(None) => String::new(),
+                    other => other.display(col.decimals),
+                })
+                .collect();
+            let _ = writeln!(s, "{}", line.join("\t"));
+        }
+        s
+    }
+
+    /// An array of objects keyed by the machine keys; absent figures are `null`.
+    pub fn to_json(&self) -> Value {
+        Value::Array(
+            self.rows
+                .iter()
+                .map(|row| {
+                    let mut m = Map::new();
+                    for (c, col) in row.iter().zip(&self.columns) {
+                        m.insert(
+                            col.key.to_string(),
+                            match c {
+                                Cell::Text(t) => Value::String(t.clone()),
+                                Cell::Num(x) => json!(x),
+                            },
+                        );
+                    }
+                    Value::Object(m)
+                })
+                .collect(),
+        )
+    }
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+const fn col(key: &'static str, header: &'static str, decimals: usize) -> Column {
+    Column {
+        key,
+        header,
+        decimals,
+    }
+}
+
+/// Columns of the event table.
+pub const EVENT_COLUMNS: [Column; 20] = [
+    col("stop", "#", 0),
+    col("kind", "stop", 0),
+    col("body", "body", 0),
+    col("epoch_utc", "date (UTC)", 0),
+    col("mjd2000", "MJD2000", 3),
+    col("vinf_in_km_s", "v∞ in (km/s)", 3),
+    col("vinf_out_km_s", "v∞ out (km/s)", 3),
+    col("periapsis_altitude_km", "altitude (km)", 0),
+    col("turn_deg", "turn (°)", 1),
+    col("powered_dv_km_s", "powered Δv (km/s)", 3),
+    col("b_t_km", "B·T (km)", 0),
+    col("b_r_km", "B·R (km)", 0),
+    col("aim_deg", "aim (°)", 1),
+    col("speed_before_km_s", "speed before (km/s)", 3),
+    col("speed_after_km_s", "speed after (km/s)", 3),
+    col("energy_before_km2_s2", "energy before (km²/s²)", 2),
+    col("energy_after_km2_s2", "energy after (km²/s²)", 2),
+    col("energy_gain_km2_s2", "energy gain (km²/s²)", 2),
+    col("dv_km_s", "Δv (km/s)", 3),
+    col("mass_after_kg", "mass (kg)", 0),
+];
+
+/// Indices into [`EVENT_COLUMNS`] of the compact view the GUI ledger shows.
+pub const LEDGER_VIEW_COLUMNS: [usize; 11] = [0, 1, 2, 3, 5, 6, 7, 8, 18, 17, 19];
+
+/// The event table: one row per stop. Figures that do not apply to a stop are absent.
+pub fn events(tour: &PreparedTour, e: &Evaluation) -> Table {
+    let n = e.stops.len().min(tour.stops.len());
+    let rows = (0..n)
+        .map(|k| {
+            let s = &e.stops[k];
+            let sw = s.swingby.filter(|_| s.kind == StopKind::SwingBy);
+            let num = |x: f64| Cell::Num(shown(x));
+            let opt = |x: Option<f64>| Cell::Num(x.and_then(shown));
+            let arriving = k > 0;
+            let leaving = k + 1 < n;
+            vec![
+                Cell::Num(Some((k + 1) as f64)),
+                Cell::Text(s.kind.label().into()),
+                Cell::Text(tour.stops[k].body.name.to_string()),
+                Cell::Text(s.epoch.to_iso_utc()),
+                num(s.epoch.mjd2000()),
+                if arriving {
+                    num(s.vinf_in.norm())
+                } else {
+                    Cell::Num(None)
+                },
+                if leaving {
+                    num(s.vinf_out.norm())
+                } else {
+                    Cell::Num(None)
+                },
+                opt(sw.and_then(|w| w.altitude_km)),
+                opt(sw.map(|w| w.turn_rad.to_degrees())),
+                opt(sw.map(|w| w.powered_dv_km_s)),
+                opt(sw.and_then(|w| w.bplane).map(|b| b.b_t)),
+                opt(sw.and_then(|w| w.bplane).map(|b| b.b_r)),
+                opt(sw.and_then(|w| w.bplane).map(|b| b.aim.to_degrees())),
+                num(s.speed_before),
+                num(s.speed_after),
+                num(s.energy_before),
+                num(s.energy_after),
+                if s.kind == StopKind::SwingBy {
+                    num(s.gain())
+                } else {
+                    Cell::Num(None)
+                },
+                num(s.dv_km_s),
+                num(s.mass_after_kg),
+            ]
+        })
+        .collect();
+    Table {
+        columns: EVENT_COLUMNS.to_vec(),
+        rows,
+    }
+}
+
+/// Columns of the ledger table.
+pub const LEDGER_COLUMNS: [Column; 5] = [
+    col("item", "item", 0),
+    col("body", "body", 0),
+    col("epoch_utc", "date (UTC)", 0),
+    col("dv_km_s", "Δv (km/s)", 3),
+    col("mass_after_kg", "mass (kg)", 1),
+];
+
+/// The ledger: the wet mass, each manoeuvre with the mass after it, then totals and margins.
+pub fn ledger(tour: &PreparedTour, e: &Evaluation) -> Table {
+    let mut rows = Vec::new();
+    let text = |s: &str| Cell::Text(s.to_string());
+    let n = e.stops.len().min(tour.stops.len());
+    if n > 0 {
+        rows.push(vec![
+            text("wet mass at launch"),
+            Cell::Text(tour.stops[0].body.name.to_string()),
+            Cell::Text(e.stops[0].epoch.to_iso_utc()),
+            Cell::Num(Some(0.0)),
+            Cell::Num(shown(e.ledger.wet_mass_kg)),
+        ]);
+    }
+    for k in 1..n {
+        let s = &e.stops[k];
+        if s.dv_km_s > 0.0 {
+            rows.push(vec![
+                text(if s.kind == StopKind::Arrival {
+                    "arrival manoeuvre"
+                } else {
+                    "powered swing-by"
+                }),
+                Cell::Text(tour.stops[k].body.name.to_string()),
+                Cell::Text(s.epoch.to_iso_utc()),
+                Cell::Num(shown(s.dv_km_s)),
+                Cell::Num(shown(s.mass_after_kg)),
+            ]);
+        }
+    }
+    let l = &e.ledger;
+    let total = |name: &str, dv: Option<f64>, m: Option<f64>| {
+        vec![
+            text(name),
+            text(""),
+            text(""),
+            Cell::Num(dv.and_then(shown)),
+            Cell::Num(m.and_then(shown)),
+        ]
+    };
+    rows.push(total(
+        "total Δv and final mass",
+        Some(l.total_dv_km_s),
+        Some(l.final_mass_kg),
+    ));
+    rows.push(total(
+        "propellant needed (kg)",
+        None,
+        Some(l.propellant_needed_kg),
+    ));
+    rows.push(total(
+        "propellant margin (kg)",
+        None,
+        Some(l.propellant_margin_kg),
+    ));
+    if let Some(m) = l.lv_margin_kg {
+        rows.push(total("launch-vehicle margin (kg)", None, Some(m)));
+    }
+    if let Some(m) = l.delivered_mass_kg {
+        rows.push(total(
+            "delivered mass with the launch vehicle (kg)",
+            None,
+            Some(m),
+        ));
+    }
+    Table {
+        columns: LEDGER_COLUMNS.to_vec(),
+        rows,
+    }
+}
+
+/// The one-line summary under the tables: Δv, propellant, masses, C3 and TOF.
+pub fn summary_line(tour: &PreparedTour, e: &Evaluation) -> String {
+    let l = &e.ledger;
+    let f = |x: f64, p: usize| match shown(x) {
+        Some(v) => format!("{v:.p$}"),
+        None => "—".into(),
+    };
+    let mut s = format!(
+        "Δv total {} km/s · propellant {} of {} kg (margin {} kg) · final {} kg",
+        f(l.total_dv_km_s, 3),
+        f(l.propellant_needed_kg, 0),
+        f(tour.spacecraft.propellant_kg, 0),
+        f(l.propellant_margin_kg, 0),
+        f(l.final_mass_kg, 0)
+    );
+    if let Some(m) = l.delivered_mass_kg {
+        let _ = write!(s, " · delivered with launch vehicle {} kg", f(m, 0));
+    }
+    let _ = write!(
+        s,
+        " · C3 {} km²/s² · TOF {} d",
+        f(e.launch.c3, 2),
+        f(e.total_tof_days(), 0)
+    );
+    s
+}
+
+/// The whole evaluation as JSON: the event table as `stops`, launch, arrival, ledger, warnings.
+pub fn to_json(tour: &PreparedTour, e: &Evaluation) -> Value {
+    let stops = events(tour, e).to_json();
+    let mut stops = match stops {
+        Value::Array(a) => a,
+        _ => Vec::new(),
+    };
+    // Swing-by extras that are not table columns.
+    for (k, v) in stops.iter_mut().enumerate() {
+        if let (Some(sw), Value::Object(m)) = (e.stops[k].swingby, v) {
+            m.insert(
+                "swingby".into(),
+                json!({
+                    "shaped": sw.shaped,
+                    "periapsis_radius_km": sw.rp_km.and_then(shown),
+                    "min_altitude_km": shown(sw.min_altitude_km),
+                    "turn_available_deg": sw.turn_available_rad.map(f64::to_degrees),
+                    "e_in": sw.e_in, "e_out": sw.e_out,
+                    "planet_dv_km_s": shown(sw.planet_dv_km_s),
+                    "miss_km": sw.miss_km,
+                    "closest_approach_km": sw.closest_approach.map(|c| c.0),
+                    "closest_approach_utc": sw.closest_approach.map(|c| c.1.to_iso_utc()),
+                }),
+            );
+        }
+    }
+    let l = &e.ledger;
+    json!({
+        "name": tour.name,
+        "sequence": tour.sequence_label(),
+        "ephemeris": tour.ephemeris_name,
+        "complete": e.complete,
+        "stops": stops,
+        "launch": {
+            "c3_km2_s2": shown(e.launch.c3), "vinf_km_s": shown(e.launch.vinf),
+            "dla_deg": shown(e.launch.dla_deg), "rla_deg": shown(e.launch.rla_deg),
+            "injected_mass_kg": e.launch.injected_mass_kg,
+        },
+        "arrival": { "vinf_km_s": shown(e.arrival.vinf), "dv_km_s": shown(e.arrival.dv_km_s) },
+        "total_tof_days": shown(e.total_tof_days()),
+        "ledger": {
+            "total_dv_km_s": shown(l.total_dv_km_s),
+            "wet_mass_kg": shown(l.wet_mass_kg),
+            "propellant_needed_kg": shown(l.propellant_needed_kg),
+            "propellant_margin_kg": shown(l.propellant_margin_kg),
+            "final_mass_kg": shown(l.final_mass_kg),
+            "lv_margin_kg": l.lv_margin_kg,
+            "delivered_mass_kg": l.delivered_mass_kg,
+            "manoeuvres": ledger(tour, e).to_json(),
+        },
+        "warnings": e.warnings.iter().map(|w| w.to_string()).collect::<Vec<_>>(),
+        "caution": crate::CAUTION,
+    })
+}
+
+/// The whole evaluation as text: the event table, launch and arrival lines, the ledger, warnings
+/// and the caution.
+pub fn to_text(tour: &PreparedTour, e: &Evaluation) -> String {
+    let mut s = String::new();
+    let _ = writeln!(
+        s,
+        "{} ({}) · ephemeris: {}",
+        tour.name,
+        tour.sequence_label(),
+        tour.ephemeris_name
+    );
+    let _ = writeln!(s);
+    s.push_str(&events(tour, e).select(&LEDGER_VIEW_COLUMNS).to_text());
+    let _ = writeln!(s);
+    let l = &e.launch;
+    let _ = writeln!(
+        s,
+        "Launch: C3 {:.3} km²/s²  v∞ {:.3} km/s  DLA {:.1}°  RLA {:.1}°{}",
+        l.c3,
+        l.vinf,
+        l.dla_deg,
+        l.rla_deg,
+        l.injected_mass_kg
+            .map(|m| format!("  injected {m:.0} kg"))
+            .unwrap_or_default()
+    );
+    let _ = writeln!(
+        s,
+        "Arrival: v∞ {:.3} km/s  Δv {:.3} km/s  total TOF {:.1} days ({:.2} years)",
+        e.arrival.vinf,
+        e.arrival.dv_km_s,
+        e.total_tof_days(),
+        e.total_tof_days() / 365.25
+    );
+    let _ = writeln!(s);
+    let _ = writeln!(s, "Ledger");
+    s.push_str(&ledger(tour, e).to_text());
+    if e.warnings.is_empty() {
+        let _ = writeln!(s, "No warnings.");
+    } else {
+        for w in &e.warnings {
+            let _ = writeln!(s, "warning: {w}");
+        }
+    }
+    let _ = writeln!(s, "{}", crate::CAUTION);
+    s
+}

@@ -1,0 +1,44 @@
+//! The rules every part of the program applies the same way: when an altitude counts as below
+//! its minimum, when a ballistic leg misses its next body, which numbers are shown at all.
+
+use tourwright_astro::bodies::BodyData;
+
+/// An altitude this far below the minimum still counts as meeting it (rounding of typed values
+/// and of the powered swing-by's periapsis solution), km.
+pub const ALTITUDE_TOLERANCE_KM: f64 = 1e-3;
+
+/// The smallest "sphere" a ballistic leg must reach at its next body, km: bodies without a
+/// sphere of influence (massless user bodies) still need a finite target.
+pub const MIN_ARRIVAL_SPHERE_KM: f64 = 1.0e4;
+
+/// True when `altitude_km` is below `min_km` by more than the tolerance.
+#[inline]
+pub fn below_minimum(altitude_km: f64, min_km: f64) -> bool {
+    altitude_km < min_km - ALTITUDE_TOLERANCE_KM
+}
+
+/// How far from the next body a ballistic leg may end and still count as meeting it, km: the
+/// body's sphere of influence (Laplace), at least [`MIN_ARRIVAL_SPHERE_KM`].
+#[inline]
+pub fn arrival_sphere_km(next: &BodyData) -> f64 {
+    next.soi_km.max(MIN_ARRIVAL_SPHERE_KM)
+}
+
+/// True when a ballistic leg ends outside the next body's arrival sphere.
+#[inline]
+pub fn misses(miss_km: f64, next: &BodyData) -> bool {
+    !(miss_km <= arrival_sphere_km(next))
+}
+
+/// What a retarget must achieve to count as a success, km: inside the arrival sphere and within
+/// 100 000 km (a swing-by at the giants needs more precision than their huge spheres suggest).
+#[inline]
+pub fn retarget_tolerance_km(next: &BodyData) -> f64 {
+    arrival_sphere_km(next).min(1.0e5)
+}
+
+/// A number fit to show: finite and not absurdly large. Anything else is shown as absent.
+#[inline]
+pub fn shown(x: f64) -> Option<f64> {
+    (x.is_finite() && x.abs() < 1e15).then_some(x)
+}

@@ -1,0 +1,385 @@
+//! Prepare once, evaluate many: a design resolved into a [`PreparedTour`] (bodies with their
+//! ephemerides and constants, limits per stop, legs' Lambert options, epochs as engine time).
+//! Evaluation, search and every view work on the prepared tour; no body is looked up by name on
+//! a hot path. A prepared tour always has at least two stops.
+
+use std::sync::Arc;
+
+use tourwright_astro::State;
+use tourwright_astro::bodies::{BodyData, Planet};
+use tourwright_astro::constants::{AU_KM, MU_SUN};
+use tourwright_astro::ephemeris::{
+    Ephemeris, EphemerisError, EphemerisModel, MeanElements, OsculatingOrbit, PlanetEphemeris,
+};
+use tourwright_astro::lambert::{Branch, Direction};
+use tourwright_astro::time::{Tdb, TimeScale};
+
+use crate::design::{
+    ArrivalGoal, LaunchLimits, LaunchVehicle, MissionDesign, Spacecraft, SwingbyMode,
+};
+use crate::files::Invalid;
+
+/// The role of a stop in the tour.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum StopKind {
+    /// First stop.
+    #[default]
+    Launch,
+    /// Any stop between the first and the last.
+    SwingBy,
+    /// Last stop.
+    Arrival,
+}
+
+impl StopKind {
+    /// The role of stop `k` in a tour of `n` stops.
+    pub fn of(k: usize, n: usize) -> Self {
+        if k == 0 {
+            StopKind::Launch
+        } else if k + 1 == n {
+            StopKind::Arrival
+        } else {
+            StopKind::SwingBy
+        }
+    }
+
+    /// Display name.
+    pub fn label(self) -> &'static str {
+        match self {
+            StopKind::Launch => "Launch",
+            StopKind::SwingBy => "Swing-by",
+            StopKind::Arrival => "Arrival",
+        }
+    }
+}
+
+/// Which body, without its data.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum BodyId {
+    /// A catalogue planet.
+    Planet(Planet),
+    /// A user body, by index into the design's `user_bodies`.
+    User(usize),
+}
+
+/// Where a body is, under the design's ephemeris model.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum BodyEphemeris {
+    /// A catalogue planet.
+    Planet(PlanetEphemeris),
+    /// A user body on its osculating two-body orbit.
+    User(OsculatingOrbit),
+}
+
+impl Ephemeris for BodyEphemeris {
+    #[inline]
+    fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
+        match self {
+            BodyEphemeris::Planet(p) => p.state(t),
+            BodyEphemeris::User(o) => o.state(t),
+        }
+    }
+    fn valid_range(&self) -> (Tdb, Tdb) {
+        match self {
+            BodyEphemeris::Planet(p) => p.valid_range(),
+            BodyEphemeris::User(o) => o.valid_range(),
+        }
+    }
+}
+
+/// A body resolved for evaluation: its name, identity, constants and ephemeris.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Body {
+    /// Name as the design writes it.
+    pub name: Arc<str>,
+    /// Identity.
+    pub id: BodyId,
+    /// μ, radius, default minimum altitude, sphere of influence.
+    pub data: BodyData,
+    /// Where it is.
+    pub ephemeris: BodyEphemeris,
+}
+
+impl Body {
+    /// Heliocentric state at `t`.
+    #[inline]
+    pub fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
+        self.ephemeris.state(t)
+    }
+
+    /// Mean heliocentric distance (semi-major axis, or perihelion distance for open orbits), km.
+    pub fn mean_distance_km(&self) -> f64 {
+        match &self.ephemeris {
+            BodyEphemeris::Planet(_) => match self.id {
+                BodyId::Planet(p) => MeanElements::of(p).a_km(),
+                BodyId::User(_) => 0.0,
+            },
+            BodyEphemeris::User(o) => {
+                let e = &o.elements;
+                let q = e.q_au * AU_KM;
+                if e.e < 1.0 { q / (1.0 - e.e) } else { q }
+            }
+        }
+    }
+
+    /// The sequence letter of a planet (E, V, J...) or the user body's name.
+    pub fn letter(&self) -> String {
+        match self.id {
+            BodyId::Planet(p) => p.letter().to_string(),
+            BodyId::User(_) => self.name.to_string(),
+        }
+    }
+}
+
+/// Every body a design can name, resolved once under the design's ephemeris model.
+#[derive(Clone, Debug, Default)]
+pub struct Catalog {
+    model: EphemerisModel,
+    users: Vec<Body>,
+}
+
+impl Catalog {
+    /// The catalogue of a design: the planets under its ephemeris model and its user bodies.
+    pub fn of(d: &MissionDesign) -> Result<Catalog, Invalid> {
+        let mut users = Vec::with_capacity(d.user_bodies.len());
+        for (i, u) in d.user_bodies.iter().enumerate() {
+            let orbit = OsculatingOrbit::new(u.elements).map_err(|e| Invalid {
+                field: format!("user_bodies[{i}].elements"),
+                reason: e.to_string(),
+            })?;
+            let mu = u.mu_km3_s2;
+            let a = if u.elements.e < 1.0 {
+                u.elements.q_au * AU_KM / (1.0 - u.elements.e)
+            } else {
+                0.0
+            };
+            let soi = if mu > 0.0 && a > 0.0 {
+                a * (mu / MU_SUN).powf(0.4)
+            } else {
+                0.0
+            };
+            users.push(Body {
+                name: u.name.as_str().into(),
+                id: BodyId::User(i),
+                data: BodyData {
+                    mu,
+                    radius_km: u.radius_km,
+                    min_altitude_km: 0.0,
+                    soi_km: soi,
+                },
+                ephemeris: BodyEphemeris::User(orbit),
+            });
+        }
+        Ok(Catalog {
+            model: EphemerisModel::default(),
+            users,
+        })
+    }
+
+    /// The ephemeris model in use.
+    pub fn model(&self) -> &EphemerisModel {
+        &self.model
+    }
+
+    /// A body by name: catalogue planets first (name or sequence letter), then user bodies
+    /// (case-insensitive).
+    pub fn body(&self, name: &str) -> Option<Body> {
+        if let Some(p) = Planet::from_name(name) {
+            return self.planet(p).ok();
+        }
+        self.users
+            .iter()
+            .find(|b| b.name.eq_ignore_ascii_case(name.trim()))
+            .cloned()
+    }
+
+    /// A catalogue planet under the model.
+    pub fn planet(&self, p: Planet) -> Result<Body, EphemerisError> {
+        Ok(Body {
+            name: p.name().into(),
+            id: BodyId::Planet(p),
+            data: self.model.planet_data(p),
+            ephemeris: BodyEphemeris::Planet(self.model.planet(p)?),
+        })
+    }
+
+    /// The user bodies.
+    pub fn user_bodies(&self) -> &[Body] {
+        &self.users
+    }
+}
+
+/// One stop of a prepared tour.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TourStop {
+    /// The body.
+    pub body: Body,
+    /// Launch, swing-by or arrival.
+    pub kind: StopKind,
+    /// Epoch.
+    pub t: Tdb,
+    /// The scale the design writes this epoch in (kept when a search writes epochs back).
+    pub scale: TimeScale,
+    /// How the swing-by is modelled (launch and arrival: targeted).
+    pub mode: SwingbyMode,
+    /// Minimum periapsis altitude in force, km.
+    pub min_altitude_km: f64,
+}
+
+/// Lambert options of one leg.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub struct TourLeg {
+    /// Complete revolutions.
+    pub revs: u32,
+    /// Branch for multi-revolution arcs.
+    pub branch: Branch,
+    /// Sense of motion.
+    pub direction: Direction,
+}
+
+/// A design resolved for evaluation.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PreparedTour {
+    /// Design name.
+    pub name: String,
+    /// Stops, at least two.
+    pub stops: Vec<TourStop>,
+    /// Legs, one fewer than stops.
+    pub legs: Vec<TourLeg>,
+    /// Launch limits.
+    pub launch: LaunchLimits,
+    /// Arrival goal.
+    pub arrival: ArrivalGoal,
+    /// Spacecraft.
+    pub spacecraft: Spacecraft,
+    /// Launch vehicle table.
+    pub vehicle: Option<LaunchVehicle>,
+    /// Name of the ephemeris model (for reports).
+    pub ephemeris_name: String,
+}
+
+impl PreparedTour {
+    /// Resolve a design. Fails with the field and the reason when a body is unknown, an epoch is
+    /// outside the ephemeris or the tour has fewer than two stops.
+    pub fn prepare(d: &MissionDesign) -> Result<PreparedTour, Invalid> {
+        let catalog = Catalog::of(d)?;
+        Self::prepare_with(d, &catalog)
+    }
+
+    /// Resolve a design with a catalogue already built.
+    pub fn prepare_with(d: &MissionDesign, catalog: &Catalog) -> Result<PreparedTour, Invalid> {
+        let n = d.stops.len();
+        if n < 2 {
+            return Err(Invalid {
+                field: "stops".into(),
+                reason: "a tour needs at least a launch and an arrival stop".into(),
+            });
+        }
+        let mut stops = Vec::with_capacity(n);
+        for (k, s) in d.stops.iter().enumerate() {
+            let body = catalog.body(&s.body).ok_or_else(|| Invalid {
+                field: format!("stops[{k}].body"),
+                reason: format!(
+                    "unknown body '{}' (not a catalogue planet nor a user body)",
+                    s.body
+                ),
+            })?;
+            let kind = StopKind::of(k, n);
+            let min_altitude_km = s
+                .swingby
+                .min_altitude_km
+                .unwrap_or(body.data.min_altitude_km);
+            stops.push(TourStop {
+                kind,
+                t: s.epoch.tdb(),
+                scale: s.epoch.scale(),
+                mode: if kind == StopKind::SwingBy {
+                    s.swingby.mode
+                } else {
+                    SwingbyMode::Targeted
+                },
+                min_altitude_km,
+                body,
+            });
+        }
+        let legs = (0..n - 1)
+            .map(|k| {
+                let o = d.leg(k);
+                TourLeg {
+                    revs: o.revolutions,
+                    branch: o.branch,
+                    direction: o.direction,
+                }
+            })
+            .collect();
+        Ok(PreparedTour {
+            name: d.name.clone(),
+            stops,
+            legs,
+            launch: d.launch,
+            arrival: d.arrival,
+            spacecraft: d.spacecraft.clone(),
+            vehicle: d.launch_vehicle.clone(),
+            ephemeris_name: catalog.model().name(),
+        })
+    }
+
+    /// A two-stop tour between two bodies (window maps, direct transfers).
+    pub fn two_stop(from: Body, to: Body, t0: Tdb, t1: Tdb, leg: TourLeg) -> PreparedTour {
+        let stop = |body: Body, kind, t| TourStop {
+            min_altitude_km: body.data.min_altitude_km,
+            body,
+            kind,
+            t,
+            scale: TimeScale::Utc,
+            mode: SwingbyMode::Targeted,
+        };
+        PreparedTour {
+            name: String::new(),
+            stops: vec![
+                stop(from, StopKind::Launch, t0),
+                stop(to, StopKind::Arrival, t1),
+            ],
+            legs: vec![leg],
+            launch: LaunchLimits::default(),
+            arrival: ArrivalGoal::FlybyOnly,
+            spacecraft: Spacecraft::default(),
+            vehicle: None,
+            ephemeris_name: String::new(),
+        }
+    }
+
+    /// Number of stops.
+    pub fn len(&self) -> usize {
+        self.stops.len()
+    }
+
+    /// Never true: a prepared tour has at least two stops.
+    pub fn is_empty(&self) -> bool {
+        self.stops.is_empty()
+    }
+
+    /// The sequence as letters, e.g. `E-V-E-J`.
+    pub fn sequence_label(&self) -> String {
+        self.stops
+            .iter()
+            .map(|s| s.body.letter())
+            .collect::<Vec<_>>()
+            .join("-")
+    }
+
+    /// Total time of flight, days.
+    pub fn total_tof_days(&self) -> f64 {
+        (self.stops[self.stops.len() - 1].t.0 - self.stops[0].t.0) / 86_400.0
+    }
+
+    /// Set the launch epoch and each leg's time of flight (days): the search variables.
+    pub fn set_schedule(&mut self, launch: Tdb, tof_days: &[f64]) {
+        let mut t = launch;
+        self.stops[0].t = t;
+        for (stop, tof) in self.stops.iter_mut().skip(1).zip(tof_days) {
+            t = t.plus_days(*tof);
+            stop.t = t;
+        }
+    }
+}

@@ -1,0 +1,341 @@
+//! The command line: the same engine for scripts and batch work. This module is the argument
+//! schema and the helpers every subcommand shares; each subcommand has a module of its own. Every
+//! command prints tables or writes files; bad input ends with a one-line reason on stderr and a
+//! non-zero exit status.
+
+mod compare;
+mod eval;
+mod explore;
+mod export;
+mod optimize;
+mod retarget;
+mod window;
+
+use std::path::{Path, PathBuf};
+
+use clap::{Parser, Subcommand, ValueEnum};
+
+use tourwright_astro::time::Epoch;
+use tourwright_mission::{MissionDesign, Objective, PreparedTour, files};
+
+pub use compare::compare_text;
+
+/// Tourwright: design gravity-assist tours with patched conics.
+#[derive(Parser, Debug)]
+#[command(name = "tourwright", version, about, after_help = tourwright_mission::CAUTION)]
+pub struct Cli {
+    /// What to do; with none, the workbench opens.
+    #[command(subcommand)]
+    pub command: Option<Command>,
+}
+
+/// Multi-revolution branches.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum BranchArg {
+    /// Izzo's left branch (smaller x).
+    Left,
+    /// Izzo's right branch (larger x).
+    Right,
+}
+
+/// Objectives for `optimize` and `explore`.
+#[derive(Clone, Copy, Debug, ValueEnum)]
+pub enum ObjectiveArg {
+    /// Launch v∞ plus every spacecraft Δv.
+    Dv,
+    /// Spacecraft Δv only (C3 held under the limit).
+    ScDv,
+    /// Delivered mass with the launch vehicle.
+    Mass,
+    /// Launch C3.
+    C3,
+    /// Total time of flight.
+    Tof,
+}
+
+impl From<ObjectiveArg> for Objective {
+    fn from(o: ObjectiveArg) -> Self {
+        match o {
+            ObjectiveArg::Dv => Objective::TotalDvWithLaunchVinf,
+            ObjectiveArg::ScDv => Objective::SpacecraftDv,
+            ObjectiveArg::Mass => Objective::DeliveredMass,
+            ObjectiveArg::C3 => Objective::LaunchC3,
+            ObjectiveArg::Tof => Objective::TimeOfFlight,
+        }
+    }
+}
+
+/// Subcommands.
+#[derive(Subcommand, Debug)]
+pub enum Command {
+    /// Open the workbench (optionally on a design file).
+    Gui {
+        /// Design file to open.
+        file: Option<PathBuf>,
+    },
+    /// Evaluate a design: event table and ledger.
+    Eval {
+        /// Design file.
+        file: PathBuf,
+        /// Machine-readable JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Compare the tour with the best direct transfer in the launch period.
+    Compare {
+        /// Design file.
+        file: PathBuf,
+        /// Ranking measure (default: mass when the design has a launch vehicle, else dv).
+        #[arg(long, value_enum)]
+        measure: Option<ObjectiveArg>,
+        /// Half-width of the launch period around the tour's launch, days.
+        #[arg(long, default_value_t = 365.25)]
+        window_days: f64,
+        /// Machine-readable JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Export tables or the trajectory.
+    Export {
+        /// Design file.
+        file: PathBuf,
+        /// Event table as CSV.
+        #[arg(long)]
+        csv: Option<PathBuf>,
+        /// Ledger as CSV.
+        #[arg(long)]
+        ledger: Option<PathBuf>,
+        /// Trajectory samples as CSV.
+        #[arg(long)]
+        samples: Option<PathBuf>,
+        /// Trajectory as a CCSDS OEM (KVN).
+        #[arg(long)]
+        oem: Option<PathBuf>,
+    },
+    /// Window map (porkchop grid) between two bodies or for one leg of a design.
+    Window {
+        /// Departure body (or take it from --design and --leg).
+        #[arg(long)]
+        from: Option<String>,
+        /// Arrival body.
+        #[arg(long)]
+        to: Option<String>,
+        /// Design whose leg to map (its dates centre the map unless given).
+        #[arg(long)]
+        design: Option<PathBuf>,
+        /// Leg number (1-based) of --design.
+        #[arg(long, default_value_t = 1)]
+        leg: usize,
+        /// Departure dates START..END.
+        #[arg(long)]
+        depart: Option<String>,
+        /// Arrival dates START..END.
+        #[arg(long)]
+        arrive: Option<String>,
+        /// Time of flight range MIN..MAX in days (instead of --arrive).
+        #[arg(long)]
+        tof: Option<String>,
+        /// Cells per axis.
+        #[arg(long, default_value_t = 200)]
+        steps: usize,
+        /// Complete revolutions of the arcs.
+        #[arg(long, default_value_t = 0)]
+        revs: u32,
+        /// Multi-revolution branch (left: smaller x, right: larger x).
+        #[arg(long, value_enum, default_value = "left")]
+        branch: BranchArg,
+        /// Write the grid as CSV.
+        #[arg(long)]
+        csv: Option<PathBuf>,
+    },
+    /// Adjust a shaped swing-by so that its ballistic leg meets the next body again.
+    Retarget {
+        /// Design file.
+        file: PathBuf,
+        /// Stop number (1-based) of the shaped swing-by.
+        #[arg(long)]
+        stop: usize,
+        /// Also move the next stop's epoch (and later ones by the same shift).
+        #[arg(long)]
+        move_epoch: bool,
+        /// Where to write the adjusted design.
+        #[arg(long)]
+        out: PathBuf,
+    },
+    /// Optimise a design's dates within its search bounds.
+    Optimize {
+        /// Design file.
+        file: PathBuf,
+        /// Seed (the same seed and budget give the same answer).
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+        /// Wall-clock limit, seconds (optional; results then depend on machine speed).
+        #[arg(long)]
+        time: Option<f64>,
+        /// Evaluation budget.
+        #[arg(long, default_value_t = 400_000)]
+        evals: u64,
+        /// Objective (default: the design's).
+        #[arg(long, value_enum)]
+        objective: Option<ObjectiveArg>,
+        /// Where to write the improved design.
+        #[arg(long)]
+        out: PathBuf,
+        /// Also write the TOF trade-off front as CSV.
+        #[arg(long)]
+        front: Option<PathBuf>,
+    },
+    /// Explore planet sequences and rank them.
+    Explore {
+        /// Launch body.
+        #[arg(long)]
+        from: String,
+        /// Target body.
+        #[arg(long)]
+        to: String,
+        /// Launch period START..END.
+        #[arg(long)]
+        launch: String,
+        /// Bodies allowed for swing-bys, comma-separated letters or names (V,E,M,J).
+        #[arg(long, default_value = "V,E,M,J")]
+        via: String,
+        /// Largest number of swing-bys.
+        #[arg(long, default_value_t = 2)]
+        max_swingbys: usize,
+        /// Largest total TOF, years.
+        #[arg(long, default_value_t = 8.0)]
+        max_tof_years: f64,
+        /// Objective.
+        #[arg(long, value_enum, default_value = "dv")]
+        objective: ObjectiveArg,
+        /// Largest launch C3, km²/s².
+        #[arg(long)]
+        max_c3: Option<f64>,
+        /// Evaluations per sequence.
+        #[arg(long, default_value_t = 60_000)]
+        evals: u64,
+        /// Seed.
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+        /// Folder for the ranked designs (one file per sequence).
+        #[arg(long)]
+        out: Option<PathBuf>,
+    },
+}
+
+/// A failure of a command: one line for stderr.
+pub type CliResult = Result<(), String>;
+
+/// Run a parsed command line (not `gui`, which the binary handles).
+pub fn run(cmd: Command) -> CliResult {
+    match cmd {
+        Command::Gui { .. } => Err("the workbench is started by the binary".into()),
+        Command::Eval { file, json } => eval::run(&file, json),
+        Command::Compare {
+            file,
+            measure,
+            window_days,
+            json,
+        } => compare::run(&file, measure, window_days, json),
+        Command::Export {
+            file,
+            csv,
+            ledger,
+            samples,
+            oem,
+        } => export::run(&file, csv, ledger, samples, oem),
+        Command::Window {
+            from,
+            to,
+            design,
+            leg,
+            depart,
+            arrive,
+            tof,
+            steps,
+            revs,
+            branch,
+            csv,
+        } => window::run(window::Args {
+            from,
+            to,
+            design,
+            leg,
+            depart,
+            arrive,
+            tof,
+            steps,
+            revs,
+            branch,
+            csv,
+        }),
+        Command::Retarget {
+            file,
+            stop,
+            move_epoch,
+            out,
+        } => retarget::run(&file, stop, move_epoch, &out),
+        Command::Optimize {
+            file,
+            seed,
+            time,
+            evals,
+            objective,
+            out,
+            front,
+        } => optimize::run(&file, seed, time, evals, objective, &out, front),
+        Command::Explore {
+            from,
+            to,
+            launch,
+            via,
+            max_swingbys,
+            max_tof_years,
+            objective,
+            max_c3,
+            evals,
+            seed,
+            out,
+        } => explore::run(explore::Args {
+            from,
+            to,
+            launch,
+            via,
+            max_swingbys,
+            max_tof_years,
+            objective,
+            max_c3,
+            evals,
+            seed,
+            out,
+        }),
+    }
+}
+
+fn load(path: &Path) -> Result<MissionDesign, String> {
+    files::load(path).map_err(|e| e.to_string())
+}
+
+fn prepare(path: &Path, d: &MissionDesign) -> Result<PreparedTour, String> {
+    PreparedTour::prepare(d).map_err(|e| format!("{}: {e}", path.display()))
+}
+
+fn write(path: &Path, text: &str) -> CliResult {
+    std::fs::write(path, text).map_err(|e| format!("{}: {e}", path.display()))
+}
+
+fn range(text: &str, what: &str) -> Result<(String, String), String> {
+    text.split_once("..")
+        .map(|(a, b)| (a.trim().to_string(), b.trim().to_string()))
+        .ok_or_else(|| format!("--{what} wants START..END, got '{text}'"))
+}
+
+fn epochs(text: &str, what: &str) -> Result<(Epoch, Epoch), String> {
+    let (a, b) = range(text, what)?;
+    let a = Epoch::parse(&a).map_err(|e| format!("--{what}: {e}"))?;
+    let b = Epoch::parse(&b).map_err(|e| format!("--{what}: {e}"))?;
+    if b.tdb().0 <= a.tdb().0 {
+        return Err(format!("--{what}: the end must be after the start"));
+    }
+    Ok((a, b))
+}

@@ -1,0 +1,65 @@
+//! Pieces two views share: switching a swing-by to shaped from its current geometry, and the
+//! miss distance with the retarget buttons.
+
+use eframe::egui::{self, RichText};
+
+use tourwright_mission::design::SwingbyMode;
+use tourwright_mission::{Edit, rules};
+
+use super::action::{Action, Actions};
+use super::app::ViewCtx;
+use super::style;
+
+/// The edit that switches stop `k` to shaped, starting from the altitude and aim it has now (or
+/// 10 000 km and 0° when it has none).
+pub fn shaped_from_current(vc: &ViewCtx<'_>, k: usize) -> Edit {
+    let sw = vc.eval.stops.get(k).and_then(|s| s.swingby);
+    let altitude_km = sw.and_then(|s| s.altitude_km).unwrap_or(10_000.0);
+    let aim_deg = sw
+        .and_then(|s| s.bplane)
+        .map(|b| b.aim.to_degrees())
+        .unwrap_or(0.0);
+    Edit::SetSwingbyMode {
+        stop: k,
+        mode: SwingbyMode::Shaped {
+            altitude_km,
+            aim_deg,
+        },
+    }
+}
+
+/// The miss distance of a shaped swing-by and the retarget buttons.
+pub fn retarget_row(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions) {
+    let miss = vc
+        .eval
+        .stops
+        .get(k)
+        .and_then(|s| s.swingby)
+        .and_then(|s| s.miss_km);
+    ui.horizontal_wrapped(|ui| {
+        if let Some(m) = miss {
+            let next = vc.tour.and_then(|t| t.stops.get(k + 1));
+            let txt = format!("misses the next body by {} km", style::fixed(m, 0));
+            if next.is_some_and(|n| rules::misses(m, &n.body.data)) {
+                ui.label(RichText::new(format!("! {txt}")).color(style::warn_color(vc.dark)));
+            } else {
+                ui.label(txt);
+            }
+        }
+        for (label, move_epoch) in [("Retarget", false), ("Retarget + move date", true)] {
+            if ui
+                .small_button(label)
+                .on_hover_text(
+                    "Adjust altitude and aim (and the next date) so the ballistic leg meets the \
+                     next body",
+                )
+                .clicked()
+            {
+                out.push(Action::Retarget {
+                    stop: k,
+                    move_epoch,
+                });
+            }
+        }
+    });
+}
