@@ -189,16 +189,16 @@ pub fn compare(
         .map_init(
             || (template.clone(), Evaluation::default()),
             |work, i| {
-                if progress.is_cancelled() {
-                    return vec![f64::INFINITY; g];
-                }
                 let row = (0..g)
                     .map(|j| {
+                        if progress.is_cancelled() {
+                            return f64::INFINITY;
+                        }
                         let (x, y) = at(i, j);
+                        progress.count_evals(1);
                         score_at(work, x, y)
                     })
                     .collect();
-                progress.count_evals(g as u64);
                 progress.add(1);
                 row
             },

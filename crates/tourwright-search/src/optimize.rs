@@ -297,8 +297,12 @@ impl Island {
             let x: Vec<f64> = (0..d)
                 .map(|i| p.lo[i] + rng.uniform() * (p.hi[i] - p.lo[i]))
                 .collect();
-            fit.push(p.score(&x, &mut work));
-            progress.count_evals(1);
+            if progress.is_cancelled() {
+                fit.push(f64::INFINITY);
+            } else {
+                fit.push(p.score(&x, &mut work));
+                progress.count_evals(1);
+            }
             pop.push(x);
         }
         let best = fit.iter().copied().fold(f64::INFINITY, f64::min);
@@ -400,6 +404,9 @@ impl Island {
             }
             for j in 0..d {
                 self.pop[i][j] = p.lo[j] + self.rng.uniform() * (p.hi[j] - p.lo[j]);
+            }
+            if progress.is_cancelled() {
+                break;
             }
             self.fit[i] = p.score(&self.pop[i], &mut self.work);
             progress.count_evals(1);

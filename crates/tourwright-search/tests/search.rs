@@ -268,3 +268,65 @@ fn direct_vs_assist_finds_the_grid_best() {
     assert!((c.hohmann.tof_days / 365.25 - 6.05).abs() < 0.1);
     assert!(c.summary().starts_with("The tour "));
 }
+
+/// Spin until `p` has counted at least `n` evaluations (the work is on another thread).
+fn wait_for_evals(p: &Progress, n: u64) {
+    while p.evaluations() < n {
+        std::thread::sleep(std::time::Duration::from_millis(2));
+    }
+}
+
+#[test]
+fn cancelling_the_explorer_stops_its_inner_optimiser() {
+    let spec = ExploreSpec {
+        from: Planet::Earth,
+        to: Planet::Jupiter,
+        launch: (
+            Epoch::parse("2030-01-01").unwrap(),
+            Epoch::parse("2031-12-31").unwrap(),
+        ),
+        via: vec![Planet::Venus, Planet::Earth, Planet::Mars],
+        max_swingbys: 2,
+        max_tof_years: 8.0,
+        objective: Objective::TotalDvWithLaunchVinf,
+        evals_per_sequence: 50_000_000,
+        seed: 1,
+    };
+    let p = Progress::new();
+    let p2 = p.clone();
+    let h = std::thread::spawn(move || explore::explore(&spec, &MissionDesign::new_blank(), &p2));
+    wait_for_evals(&p, 20_000);
+    p.cancel();
+    let at_cancel = p.evaluations();
+    let ex = h.join().unwrap();
+    let after = p.evaluations() - at_cancel;
+    // Every inner loop checks the shared cancel flag before each evaluation: at most one
+    // evaluation per island already under way, nothing like the 50 million asked for.
+    assert!(after <= 16, "{after} evaluations after cancel");
+    assert!(ex.ranked.len() <= 1);
+}
+
+#[test]
+fn cancelling_the_direct_search_stops_its_grid_and_polish() {
+    let d = files::load(
+        &samples()
+            .into_iter()
+            .find(|p| p.to_string_lossy().contains("tern-saturn"))
+            .unwrap(),
+    )
+    .unwrap();
+    let mut o = DirectOptions::for_design(&d);
+    o.grid = 1500;
+    let p = Progress::new();
+    let p2 = p.clone();
+    let h = std::thread::spawn(move || direct::compare(&d, &o, &p2));
+    wait_for_evals(&p, 3_000);
+    p.cancel();
+    let at_cancel = p.evaluations();
+    let r = h.join().unwrap();
+    let after = p.evaluations() - at_cancel;
+    // Every cell checks the shared cancel flag first: at most one evaluation per worker thread
+    // already under way; the polish does not run.
+    assert!(after <= 64, "{after} evaluations after cancel");
+    assert!(r.is_none());
+}
