@@ -8,11 +8,19 @@ use tourwright_mission::report;
 use tourwright_search::Progress;
 use tourwright_search::direct::{self, DirectComparison, DirectOptions};
 
-use super::{CliResult, ObjectiveArg, load};
+use tourwright_mission::design::EphemerisChoice;
+
+use super::{CliResult, ObjectiveArg, load_with};
 
 /// Run `compare`.
-pub fn run(file: &Path, measure: Option<ObjectiveArg>, window_days: f64, json: bool) -> CliResult {
-    let d = load(file)?;
+pub fn run(
+    file: &Path,
+    ephemeris: Option<EphemerisChoice>,
+    measure: Option<ObjectiveArg>,
+    window_days: f64,
+    json: bool,
+) -> CliResult {
+    let d = load_with(file, ephemeris)?;
     let mut o = DirectOptions::for_design(&d);
     if !(window_days.is_finite() && window_days > 0.0 && window_days <= 3650.0) {
         return Err("--window-days must be between 0 and 3650".into());

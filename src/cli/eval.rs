@@ -5,11 +5,13 @@ use std::path::Path;
 use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate};
 use tourwright_mission::report;
 
-use super::{CliResult, load, prepare};
+use tourwright_mission::design::EphemerisChoice;
+
+use super::{CliResult, load_with, prepare};
 
 /// Run `eval`.
-pub fn run(file: &Path, json: bool) -> CliResult {
-    let d = load(file)?;
+pub fn run(file: &Path, ephemeris: Option<EphemerisChoice>, json: bool) -> CliResult {
+    let d = load_with(file, ephemeris)?;
     let tour = prepare(file, &d)?;
     let mut e = Evaluation::default();
     evaluate(&tour, &EvalOptions::default(), &mut e);

@@ -3,6 +3,7 @@
 use std::path::PathBuf;
 
 use tourwright_astro::bodies::Planet;
+use tourwright_mission::design::EphemerisChoice;
 use tourwright_mission::{MissionDesign, files};
 use tourwright_search::Progress;
 use tourwright_search::explore::{self, ExploreSpec};
@@ -13,6 +14,8 @@ use super::{CliResult, ObjectiveArg, epochs};
 pub struct Args {
     /// Launch body.
     pub from: String,
+    /// Ephemeris model.
+    pub ephemeris: Option<EphemerisChoice>,
     /// Target body.
     pub to: String,
     /// Launch period.
@@ -63,6 +66,9 @@ pub fn run(a: Args) -> CliResult {
         seed: a.seed,
     };
     let mut template = MissionDesign::new_blank();
+    if let Some(e) = a.ephemeris {
+        template.ephemeris = e;
+    }
     template.launch.max_c3_km2_s2 = a.max_c3;
     let ex = explore::explore(&spec, &template, &Progress::new());
     println!(

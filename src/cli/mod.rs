@@ -16,6 +16,7 @@ use std::path::{Path, PathBuf};
 use clap::{Parser, Subcommand, ValueEnum};
 
 use tourwright_astro::time::Epoch;
+use tourwright_mission::design::EphemerisChoice;
 use tourwright_mission::{MissionDesign, Objective, PreparedTour, files};
 
 pub use compare::compare_text;
@@ -77,6 +78,10 @@ pub enum Command {
     Eval {
         /// Design file.
         file: PathBuf,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
+        /// (the MGA benchmark set's analytic model); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
         /// Machine-readable JSON instead of text.
         #[arg(long)]
         json: bool,
@@ -85,6 +90,10 @@ pub enum Command {
     Compare {
         /// Design file.
         file: PathBuf,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
+        /// (the MGA benchmark set's analytic model); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
         /// Ranking measure (default: mass when the design has a launch vehicle, else dv).
         #[arg(long, value_enum)]
         measure: Option<ObjectiveArg>,
@@ -117,6 +126,10 @@ pub enum Command {
         /// Departure body (or take it from --design and --leg).
         #[arg(long)]
         from: Option<String>,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
+        /// (the MGA benchmark set's analytic model); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
         /// Arrival body.
         #[arg(long)]
         to: Option<String>,
@@ -152,6 +165,10 @@ pub enum Command {
     Retarget {
         /// Design file.
         file: PathBuf,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
+        /// (the MGA benchmark set's analytic model); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
         /// Stop number (1-based) of the shaped swing-by.
         #[arg(long)]
         stop: usize,
@@ -166,6 +183,10 @@ pub enum Command {
     Optimize {
         /// Design file.
         file: PathBuf,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
+        /// (the MGA benchmark set's analytic model); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
         /// Seed (the same seed and budget give the same answer).
         #[arg(long, default_value_t = 1)]
         seed: u64,
@@ -190,6 +211,10 @@ pub enum Command {
         /// Launch body.
         #[arg(long)]
         from: String,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
+        /// (the MGA benchmark set's analytic model); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
         /// Target body.
         #[arg(long)]
         to: String,
@@ -230,13 +255,18 @@ pub type CliResult = Result<(), String>;
 pub fn run(cmd: Command) -> CliResult {
     match cmd {
         Command::Gui { .. } => Err("the workbench is started by the binary".into()),
-        Command::Eval { file, json } => eval::run(&file, json),
+        Command::Eval {
+            file,
+            ephemeris,
+            json,
+        } => eval::run(&file, ephemeris, json),
         Command::Compare {
             file,
+            ephemeris,
             measure,
             window_days,
             json,
-        } => compare::run(&file, measure, window_days, json),
+        } => compare::run(&file, ephemeris, measure, window_days, json),
         Command::Export {
             file,
             csv,
@@ -246,6 +276,7 @@ pub fn run(cmd: Command) -> CliResult {
         } => export::run(&file, csv, ledger, samples, oem),
         Command::Window {
             from,
+            ephemeris,
             to,
             design,
             leg,
@@ -258,6 +289,7 @@ pub fn run(cmd: Command) -> CliResult {
             csv,
         } => window::run(window::Args {
             from,
+            ephemeris,
             to,
             design,
             leg,
@@ -271,21 +303,24 @@ pub fn run(cmd: Command) -> CliResult {
         }),
         Command::Retarget {
             file,
+            ephemeris,
             stop,
             move_epoch,
             out,
-        } => retarget::run(&file, stop, move_epoch, &out),
+        } => retarget::run(&file, ephemeris, stop, move_epoch, &out),
         Command::Optimize {
             file,
+            ephemeris,
             seed,
             time,
             evals,
             objective,
             out,
             front,
-        } => optimize::run(&file, seed, time, evals, objective, &out, front),
+        } => optimize::run(&file, ephemeris, seed, time, evals, objective, &out, front),
         Command::Explore {
             from,
+            ephemeris,
             to,
             launch,
             via,
@@ -298,6 +333,7 @@ pub fn run(cmd: Command) -> CliResult {
             out,
         } => explore::run(explore::Args {
             from,
+            ephemeris,
             to,
             launch,
             via,
@@ -314,6 +350,16 @@ pub fn run(cmd: Command) -> CliResult {
 
 fn load(path: &Path) -> Result<MissionDesign, String> {
     files::load(path).map_err(|e| e.to_string())
+}
+
+/// Load a design and apply the command line's ephemeris choice (validated again under it).
+fn load_with(path: &Path, ephemeris: Option<EphemerisChoice>) -> Result<MissionDesign, String> {
+    let mut d = load(path)?;
+    if let Some(e) = ephemeris {
+        d.ephemeris = e;
+        files::validate(&d).map_err(|i| format!("{}: {i}", path.display()))?;
+    }
+    Ok(d)
 }
 
 fn prepare(path: &Path, d: &MissionDesign) -> Result<PreparedTour, String> {

@@ -8,11 +8,14 @@ use tourwright_mission::{files, report};
 use tourwright_search::Progress;
 use tourwright_search::optimize::{self, OptimizeOptions, Problem, Workspace};
 
-use super::{CliResult, ObjectiveArg, load, prepare, write};
+use tourwright_mission::design::EphemerisChoice;
+
+use super::{CliResult, ObjectiveArg, load_with, prepare, write};
 
 /// Run `optimize`.
 pub fn run(
     file: &Path,
+    ephemeris: Option<EphemerisChoice>,
     seed: u64,
     time: Option<f64>,
     evals: u64,
@@ -20,7 +23,7 @@ pub fn run(
     out: &Path,
     front: Option<PathBuf>,
 ) -> CliResult {
-    let mut d = load(file)?;
+    let mut d = load_with(file, ephemeris)?;
     if let Some(o) = objective {
         d.search.objective = o.into();
     }

@@ -5,16 +5,19 @@ use std::path::PathBuf;
 
 use tourwright_astro::lambert::Branch;
 use tourwright_mission::MissionDesign;
+use tourwright_mission::design::EphemerisChoice;
 use tourwright_mission::design::LegOptions;
 use tourwright_search::Progress;
 use tourwright_search::window::{self, Quantity, SecondAxis, WindowSpec};
 
-use super::{BranchArg, CliResult, epochs, load, range, write};
+use super::{BranchArg, CliResult, epochs, load_with, range, write};
 
 /// The arguments of `window`.
 pub struct Args {
     /// Departure body.
     pub from: Option<String>,
+    /// Ephemeris model.
+    pub ephemeris: Option<EphemerisChoice>,
     /// Arrival body.
     pub to: Option<String>,
     /// Design whose leg to map.
@@ -39,10 +42,13 @@ pub struct Args {
 
 /// Run `window`.
 pub fn run(a: Args) -> CliResult {
-    let base = match &a.design {
-        Some(p) => load(p)?,
+    let mut base = match &a.design {
+        Some(p) => load_with(p, a.ephemeris.clone())?,
         None => MissionDesign::new_blank(),
     };
+    if let Some(e) = &a.ephemeris {
+        base.ephemeris = e.clone();
+    }
     let (from, to, centre) = match (&a.design, a.from, a.to) {
         (_, Some(f), Some(t)) => (f, t, None),
         (Some(_), _, _) => {

@@ -6,7 +6,8 @@ use eframe::egui::{self, DragValue, RichText};
 use tourwright_astro::lambert::{Branch, Direction, MAX_REVS};
 use tourwright_astro::time::Epoch;
 use tourwright_mission::design::{
-    ArrivalGoal, LaunchLimits, LaunchVehicle, LegOptions, PerformancePoint, SwingbyMode,
+    ArrivalGoal, EphemerisChoice, LaunchLimits, LaunchVehicle, LegOptions, PerformancePoint,
+    SwingbyMode,
 };
 use tourwright_mission::evaluate::StopKind;
 use tourwright_mission::report::{self, EVENT_COLUMNS, LEDGER_VIEW_COLUMNS};
@@ -54,6 +55,24 @@ impl TourPanel {
             }
         });
         ui.label(RichText::new(d.sequence_label()).strong());
+        ui.horizontal(|ui| {
+            let lab = ui
+                .label("Ephemeris")
+                .on_hover_text("The model that gives the planets' states and constants");
+            let mut choice = d.ephemeris.clone();
+            egui::ComboBox::from_id_salt("ephemeris")
+                .selected_text(choice.label())
+                .show_ui(ui, |ui| {
+                    for (_, c) in EphemerisChoice::NAMED {
+                        ui.selectable_value(&mut choice, c.clone(), c.label());
+                    }
+                })
+                .response
+                .labelled_by(lab.id);
+            if choice != d.ephemeris {
+                out.push(Action::Edit(Edit::SetEphemeris(choice)));
+            }
+        });
         ui.add_space(4.0);
         let n = d.stops.len();
         let names = d.body_names();
@@ -191,7 +210,11 @@ impl TourPanel {
             if commit {
                 match Epoch::parse(&text) {
                     Ok(t) => {
-                        let range = tourwright_astro::ephemeris::mean_element_range();
+                        let range = vc
+                            .tour
+                            .map_or_else(tourwright_astro::ephemeris::mean_element_range, |t| {
+                                t.model.range()
+                            });
                         let tt = t.tdb();
                         if !(tt.0 >= range.0.0 && tt.0 <= range.1.0) {
                             self.epoch_error = Some((

@@ -5,7 +5,7 @@ use eframe::egui::{self, Align2, Color32, FontId, Pos2, Sense, Shape, Stroke, Ve
 
 use tourwright_astro::bodies::Planet;
 use tourwright_astro::constants::AU_KM;
-use tourwright_astro::ephemeris::{Ephemeris, MeanElements, mean_element_range};
+use tourwright_astro::ephemeris::Ephemeris;
 use tourwright_astro::time::Tdb;
 use tourwright_mission::tour::{BodyEphemeris, BodyId, PreparedTour};
 
@@ -21,6 +21,7 @@ pub type Orbits = Vec<(String, Vec<[f64; 2]>)>;
 /// swing-by does not redraw the planets' orbits.
 #[derive(Clone, Debug, PartialEq)]
 struct OrbitKey {
+    model: String,
     planets: Vec<Planet>,
     users: Vec<(String, [u64; 6])>,
     day: i64,
@@ -74,9 +75,10 @@ fn orbit_key(tour: &PreparedTour) -> OrbitKey {
         }
     }
     OrbitKey {
+        model: tour.ephemeris_name.clone(),
         planets: Planet::ALL
             .into_iter()
-            .filter(|p| MeanElements::of(*p).a_km() * 0.9 <= reach)
+            .filter(|p| tour.model.planet(*p).is_ok_and(|e| e.a_km() * 0.9 <= reach))
             .collect(),
         users,
         day: tour.stops[0].t.days().floor() as i64,
@@ -84,19 +86,23 @@ fn orbit_key(tour: &PreparedTour) -> OrbitKey {
 }
 
 fn build_orbits(tour: &PreparedTour, key: &OrbitKey) -> Orbits {
-    let (lo, hi) = mean_element_range();
+    let (lo, hi) = tour.model.range();
     let t0 = Tdb(tour.stops[0].t.0.clamp(lo.0, hi.0));
     let mut v = Vec::new();
     for &p in &key.planets {
-        let me = MeanElements::of(p);
-        let period = me.period_days();
-        // Drawn from the elements at the launch epoch without the range check, so that outer
-        // planets' full ellipses show even near 2050.
+        let Ok(eph) = tour.model.planet(p) else {
+            continue;
+        };
+        let a = eph.a_km();
+        let period = std::f64::consts::TAU * (a * a * a / tour.mu_sun).sqrt() / 86_400.0;
+        // Drawn from the launch epoch on, without the range check, so that outer planets' full
+        // ellipses show even near the end of the model's range.
         let pts: Vec<[f64; 2]> = (0..=240)
-            .map(|i| {
-                let s = me.state_unchecked(t0.plus_days(period * i as f64 / 240.0));
-                [s.r.x / AU_KM, s.r.y / AU_KM]
+            .filter_map(|i| {
+                eph.state_unchecked(t0.plus_days(period * i as f64 / 240.0))
+                    .ok()
             })
+            .map(|s| [s.r.x / AU_KM, s.r.y / AU_KM])
             .collect();
         v.push((p.name().to_string(), pts));
     }

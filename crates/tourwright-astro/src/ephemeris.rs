@@ -14,6 +14,7 @@ use serde::{Deserialize, Serialize};
 use crate::bodies::Planet;
 use crate::constants::{AU_KM, DAY_S, DEG, JULIAN_CENTURY_DAYS, MU_SUN};
 use crate::kepler::{self, Elements};
+use crate::mga_model::MgaElements;
 use crate::time::{Epoch, Tdb};
 use crate::{State, Vec3};
 
@@ -33,6 +34,9 @@ pub enum EphemerisError {
     /// The orbit could not be evaluated (degenerate elements).
     #[error("orbit cannot be evaluated: {0}")]
     Orbit(String),
+    /// The source has no such body.
+    #[error("{0}")]
+    NoBody(String),
 }
 
 /// A source of heliocentric ecliptic J2000 states.
@@ -321,6 +325,26 @@ impl Ephemeris for Planet {
 pub enum PlanetEphemeris {
     /// A row of the Standish 1800-2050 mean-element table.
     Standish(&'static MeanElements),
+    /// A row of the multiple-gravity-assist benchmark's model.
+    Mga(&'static MgaElements),
+}
+
+impl PlanetEphemeris {
+    /// State at `t` without the range check (for drawing whole orbits near the ends of a range).
+    pub fn state_unchecked(&self, t: Tdb) -> Result<State, EphemerisError> {
+        match self {
+            PlanetEphemeris::Standish(m) => Ok(m.state_unchecked(t)),
+            PlanetEphemeris::Mga(m) => m.state_unchecked(t),
+        }
+    }
+
+    /// Semi-major axis of the orbit this model gives the planet, km.
+    pub fn a_km(&self) -> f64 {
+        match self {
+            PlanetEphemeris::Standish(m) => m.a_km(),
+            PlanetEphemeris::Mga(m) => m.a_km(),
+        }
+    }
 }
 
 impl Ephemeris for PlanetEphemeris {
@@ -328,21 +352,27 @@ impl Ephemeris for PlanetEphemeris {
     fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
         match self {
             PlanetEphemeris::Standish(m) => m.state(t),
+            PlanetEphemeris::Mga(m) => m.state(t),
         }
     }
     fn valid_range(&self) -> (Tdb, Tdb) {
         match self {
             PlanetEphemeris::Standish(m) => m.valid_range(),
+            PlanetEphemeris::Mga(m) => m.valid_range(),
         }
     }
 }
 
-/// A selectable model of the planets: where they are and the constants that go with them.
+/// A selectable model of the planets: where they are and the constants that go with them (μ☉
+/// included: the benchmark model has its own).
 #[derive(Clone, Debug, Default, PartialEq)]
 pub enum EphemerisModel {
     /// JPL approximate Keplerian elements, 1800-2050 (Standish), with the catalogue's constants.
     #[default]
     MeanElements,
+    /// The published multiple-gravity-assist benchmark's analytic model (Mercury to Saturn) with
+    /// its own μ, radii, AU and μ☉.
+    MgaBenchmark,
 }
 
 impl EphemerisModel {
@@ -350,6 +380,7 @@ impl EphemerisModel {
     pub fn name(&self) -> String {
         match self {
             EphemerisModel::MeanElements => "JPL mean elements 1800-2050".into(),
+            EphemerisModel::MgaBenchmark => "MGA benchmark model".into(),
         }
     }
 
@@ -357,6 +388,14 @@ impl EphemerisModel {
     pub fn planet(&self, p: Planet) -> Result<PlanetEphemeris, EphemerisError> {
         match self {
             EphemerisModel::MeanElements => Ok(PlanetEphemeris::Standish(MeanElements::of(p))),
+            EphemerisModel::MgaBenchmark => {
+                MgaElements::of(p).map(PlanetEphemeris::Mga).ok_or_else(|| {
+                    EphemerisError::NoBody(format!(
+                        "{} is not in the MGA benchmark model",
+                        p.name()
+                    ))
+                })
+            }
         }
     }
 
@@ -364,6 +403,15 @@ impl EphemerisModel {
     pub fn planet_data(&self, p: Planet) -> crate::bodies::BodyData {
         match self {
             EphemerisModel::MeanElements => p.data(),
+            EphemerisModel::MgaBenchmark => crate::mga_model::planet_data(p).unwrap_or(p.data()),
+        }
+    }
+
+    /// The heliocentric gravitational parameter that goes with this model, km³/s².
+    pub fn mu_sun(&self) -> f64 {
+        match self {
+            EphemerisModel::MeanElements => MU_SUN,
+            EphemerisModel::MgaBenchmark => crate::mga_model::MU_SUN,
         }
     }
 
@@ -371,6 +419,7 @@ impl EphemerisModel {
     pub fn range(&self) -> (Tdb, Tdb) {
         match self {
             EphemerisModel::MeanElements => mean_element_range(),
+            EphemerisModel::MgaBenchmark => crate::mga_model::range(),
         }
     }
 }

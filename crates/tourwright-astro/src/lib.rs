@@ -7,6 +7,7 @@ pub mod ephemeris;
 pub mod flyby;
 pub mod kepler;
 pub mod lambert;
+pub mod mga_model;
 pub mod time;
 pub mod transfer;
 

@@ -632,12 +632,14 @@ impl Tdb {
         Epoch::from_tdb(self, TimeScale::Tdb)
     }
 
-    /// ISO text in UTC to the millisecond, for display.
+    /// ISO text in UTC to the nearest millisecond, for display.
     pub fn to_iso_utc(self) -> String {
         if !self.0.is_finite() {
             return "not a date".into();
         }
-        Epoch::from_tdb(self, TimeScale::Utc).to_iso_utc()
+        // Half a millisecond added to the instant, then truncated: rounding that carries across
+        // minutes, days and leap seconds correctly.
+        Epoch::from_tdb(Tdb(self.0 + 5e-4), TimeScale::Utc).to_iso_utc()
     }
 
     /// The UTC calendar date, `YYYY-MM-DD`, for display.

@@ -52,6 +52,54 @@ pub struct MissionDesign {
     /// Bounds and objective for the date optimiser.
     #[serde(default)]
     pub search: SearchBounds,
+    /// Which ephemeris model gives the planets' states and constants.
+    #[serde(default, skip_serializing_if = "EphemerisChoice::is_default")]
+    pub ephemeris: EphemerisChoice,
+}
+
+/// The ephemeris model a design uses.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize, Default)]
+pub enum EphemerisChoice {
+    /// JPL approximate Keplerian elements 1800-2050 (Standish) with the catalogue's constants.
+    #[default]
+    MeanElements,
+    /// The published multiple-gravity-assist benchmark's analytic model and constants.
+    MgaBenchmark,
+}
+
+impl EphemerisChoice {
+    /// True for the default (not written to files).
+    pub fn is_default(&self) -> bool {
+        *self == EphemerisChoice::default()
+    }
+
+    /// Every choice with its command-line name.
+    pub const NAMED: [(&'static str, EphemerisChoice); 2] = [
+        ("mean-elements", EphemerisChoice::MeanElements),
+        ("mga-benchmark", EphemerisChoice::MgaBenchmark),
+    ];
+
+    /// Read a command-line name (`mean-elements`, `mga-benchmark`).
+    pub fn parse(s: &str) -> Result<EphemerisChoice, String> {
+        Self::NAMED
+            .iter()
+            .find(|(n, _)| n.eq_ignore_ascii_case(s.trim()))
+            .map(|(_, c)| c.clone())
+            .ok_or_else(|| {
+                format!(
+                    "unknown ephemeris '{s}' (choose {})",
+                    Self::NAMED.map(|n| n.0).join(", ")
+                )
+            })
+    }
+
+    /// Words for menus.
+    pub fn label(&self) -> &'static str {
+        match self {
+            EphemerisChoice::MeanElements => "JPL mean elements 1800-2050",
+            EphemerisChoice::MgaBenchmark => "MGA benchmark model",
+        }
+    }
 }
 
 /// A body defined by heliocentric osculating elements.
@@ -90,6 +138,13 @@ pub struct SwingbySettings {
     /// Minimum periapsis altitude, km; the body's default when absent.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub min_altitude_km: Option<f64>,
+    /// Smallest v∞ a swing-by may have, km/s; [`crate::rules::DEFAULT_MIN_VINF_KM_S`] when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub min_vinf_km_s: Option<f64>,
+    /// Design limit on the powered-swing-by impulse, km/s;
+    /// [`crate::rules::DEFAULT_MAX_POWERED_DV_KM_S`] when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_powered_dv_km_s: Option<f64>,
     /// Targeted or shaped.
     #[serde(default)]
     pub mode: SwingbyMode,
@@ -273,6 +328,7 @@ impl MissionDesign {
             spacecraft: Default::default(),
             launch_vehicle: None,
             search: Default::default(),
+            ephemeris: Default::default(),
         }
     }
 

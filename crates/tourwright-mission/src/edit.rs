@@ -6,8 +6,8 @@
 use tourwright_astro::time::Epoch;
 
 use crate::design::{
-    ArrivalGoal, LaunchLimits, LaunchVehicle, LegOptions, MissionDesign, Objective, Spacecraft,
-    Stop, SwingbyMode,
+    ArrivalGoal, EphemerisChoice, LaunchLimits, LaunchVehicle, LegOptions, MissionDesign,
+    Objective, Spacecraft, Stop, SwingbyMode,
 };
 
 /// One change to a design.
@@ -91,6 +91,8 @@ pub enum Edit {
     SetVehicle(Option<LaunchVehicle>),
     /// Set the search objective.
     SetObjective(Objective),
+    /// Choose the ephemeris model.
+    SetEphemeris(EphemerisChoice),
     /// Replace the whole design.
     Replace(Box<MissionDesign>),
 }
@@ -136,6 +138,7 @@ impl Edit {
             Edit::SetSpacecraft(_) => "spacecraft",
             Edit::SetVehicle(_) => "launch vehicle",
             Edit::SetObjective(_) => "objective",
+            Edit::SetEphemeris(_) => "ephemeris",
             Edit::Replace(_) => "replace design",
         }
     }
@@ -266,6 +269,7 @@ impl Edit {
             Edit::SetSpacecraft(s) => d.spacecraft = s,
             Edit::SetVehicle(v) => d.launch_vehicle = v,
             Edit::SetObjective(o) => d.search.objective = o,
+            Edit::SetEphemeris(e) => d.ephemeris = e,
             Edit::Replace(x) => *d = *x,
         }
         Ok(())

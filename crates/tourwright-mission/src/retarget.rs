@@ -5,7 +5,7 @@
 use nalgebra::{Matrix3, Vector3};
 
 use tourwright_astro::Vec3;
-use tourwright_astro::constants::{DAY_S, MU_SUN};
+use tourwright_astro::constants::DAY_S;
 use tourwright_astro::flyby;
 use tourwright_astro::lambert;
 use tourwright_astro::time::Epoch;
@@ -79,7 +79,7 @@ pub fn retarget(
             return None;
         }
         let vout = shaped_vinf_out(&data, &vin, x[0], x[1]);
-        let end = ballistic_arrival(&planet, &vout, x[2]).ok()?;
+        let end = ballistic_arrival(&planet, &vout, x[2], tour.mu_sun).ok()?;
         let target = next.state(t_k.plus_days(x[2] / DAY_S)).ok()?;
         let m = end.r - target.r;
         m.iter().all(|c| c.is_finite()).then_some(m)
@@ -89,7 +89,7 @@ pub fn retarget(
     let mut x = [altitude_km, aim_deg, tof0];
     if let Ok(target) = next.state(tour.stops[k + 1].t) {
         let dir = tour.legs[k].direction;
-        if let Ok(s) = lambert::solve_single(&planet.r, &target.r, tof0, MU_SUN, dir) {
+        if let Ok(s) = lambert::solve_single(&planet.r, &target.r, tof0, tour.mu_sun, dir) {
             let vreq = s.v1 - planet.v;
             let turn = (vin.dot(&vreq) / (vin.norm() * vreq.norm()))
                 .clamp(-1.0, 1.0)

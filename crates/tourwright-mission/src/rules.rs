@@ -3,6 +3,18 @@
 
 use tourwright_astro::bodies::BodyData;
 
+/// Default smallest v∞ of a swing-by, km/s (common practice for patched-conic concept work):
+/// below about 1 km/s the spacecraft spends weeks inside the planet's sphere of influence (Earth's
+/// is about 925 000 km across), the "instantaneous swing-by" of patched conics no longer holds, and
+/// an encounter at such a speed is a deferred launch or a capture, not a swing-by.
+pub const DEFAULT_MIN_VINF_KM_S: f64 = 1.0;
+
+/// Default design limit on a powered swing-by's periapsis impulse, km/s (common practice: a burn
+/// at low altitude is kept to a few hundred m/s, rarely above 1 km/s, because a pointing or
+/// timing error there is amplified through the hyperbola; larger Δv is flown as deep-space
+/// manoeuvres).
+pub const DEFAULT_MAX_POWERED_DV_KM_S: f64 = 1.0;
+
 /// An altitude this far below the minimum still counts as meeting it (rounding of typed values
 /// and of the powered swing-by's periapsis solution), km.
 pub const ALTITUDE_TOLERANCE_KM: f64 = 1e-3;

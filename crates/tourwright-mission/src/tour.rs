@@ -9,13 +9,14 @@ use tourwright_astro::State;
 use tourwright_astro::bodies::{BodyData, Planet};
 use tourwright_astro::constants::{AU_KM, MU_SUN};
 use tourwright_astro::ephemeris::{
-    Ephemeris, EphemerisError, EphemerisModel, MeanElements, OsculatingOrbit, PlanetEphemeris,
+    Ephemeris, EphemerisError, EphemerisModel, OsculatingOrbit, PlanetEphemeris,
 };
 use tourwright_astro::lambert::{Branch, Direction};
 use tourwright_astro::time::{Tdb, TimeScale};
 
 use crate::design::{
-    ArrivalGoal, LaunchLimits, LaunchVehicle, MissionDesign, Spacecraft, SwingbyMode,
+    ArrivalGoal, EphemerisChoice, LaunchLimits, LaunchVehicle, MissionDesign, Spacecraft,
+    SwingbyMode,
 };
 use crate::files::Invalid;
 
@@ -110,10 +111,7 @@ impl Body {
     /// Mean heliocentric distance (semi-major axis, or perihelion distance for open orbits), km.
     pub fn mean_distance_km(&self) -> f64 {
         match &self.ephemeris {
-            BodyEphemeris::Planet(_) => match self.id {
-                BodyId::Planet(p) => MeanElements::of(p).a_km(),
-                BodyId::User(_) => 0.0,
-            },
+            BodyEphemeris::Planet(p) => p.a_km(),
             BodyEphemeris::User(o) => {
                 let e = &o.elements;
                 let q = e.q_au * AU_KM;
@@ -170,10 +168,11 @@ impl Catalog {
                 ephemeris: BodyEphemeris::User(orbit),
             });
         }
-        Ok(Catalog {
-            model: EphemerisModel::default(),
-            users,
-        })
+        let model = match d.ephemeris {
+            EphemerisChoice::MeanElements => EphemerisModel::MeanElements,
+            EphemerisChoice::MgaBenchmark => EphemerisModel::MgaBenchmark,
+        };
+        Ok(Catalog { model, users })
     }
 
     /// The ephemeris model in use.
@@ -182,7 +181,7 @@ impl Catalog {
     }
 
     /// A body by name: catalogue planets first (name or sequence letter), then user bodies
-    /// (case-insensitive).
+    /// (case-insensitive). A planet the model does not carry is `None`.
     pub fn body(&self, name: &str) -> Option<Body> {
         if let Some(p) = Planet::from_name(name) {
             return self.planet(p).ok();
@@ -224,6 +223,10 @@ pub struct TourStop {
     pub mode: SwingbyMode,
     /// Minimum periapsis altitude in force, km.
     pub min_altitude_km: f64,
+    /// Smallest v∞ a swing-by here may have, km/s.
+    pub min_vinf_km_s: f64,
+    /// Design limit on the powered-swing-by impulse here, km/s.
+    pub max_powered_dv_km_s: f64,
 }
 
 /// Lambert options of one leg.
@@ -256,6 +259,10 @@ pub struct PreparedTour {
     pub vehicle: Option<LaunchVehicle>,
     /// Name of the ephemeris model (for reports).
     pub ephemeris_name: String,
+    /// The ephemeris model (for views that draw planets not in the tour).
+    pub model: EphemerisModel,
+    /// The heliocentric gravitational parameter of the model, km³/s².
+    pub mu_sun: f64,
 }
 
 impl PreparedTour {
@@ -299,6 +306,14 @@ impl PreparedTour {
                     SwingbyMode::Targeted
                 },
                 min_altitude_km,
+                min_vinf_km_s: s
+                    .swingby
+                    .min_vinf_km_s
+                    .unwrap_or(crate::rules::DEFAULT_MIN_VINF_KM_S),
+                max_powered_dv_km_s: s
+                    .swingby
+                    .max_powered_dv_km_s
+                    .unwrap_or(crate::rules::DEFAULT_MAX_POWERED_DV_KM_S),
                 body,
             });
         }
@@ -321,13 +336,24 @@ impl PreparedTour {
             spacecraft: d.spacecraft.clone(),
             vehicle: d.launch_vehicle.clone(),
             ephemeris_name: catalog.model().name(),
+            model: catalog.model().clone(),
+            mu_sun: catalog.model().mu_sun(),
         })
     }
 
-    /// A two-stop tour between two bodies (window maps, direct transfers).
-    pub fn two_stop(from: Body, to: Body, t0: Tdb, t1: Tdb, leg: TourLeg) -> PreparedTour {
+    /// A two-stop tour between two bodies (window maps, direct transfers) under `model`.
+    pub fn two_stop(
+        model: &EphemerisModel,
+        from: Body,
+        to: Body,
+        t0: Tdb,
+        t1: Tdb,
+        leg: TourLeg,
+    ) -> PreparedTour {
         let stop = |body: Body, kind, t| TourStop {
             min_altitude_km: body.data.min_altitude_km,
+            min_vinf_km_s: crate::rules::DEFAULT_MIN_VINF_KM_S,
+            max_powered_dv_km_s: crate::rules::DEFAULT_MAX_POWERED_DV_KM_S,
             body,
             kind,
             t,
@@ -345,7 +371,9 @@ impl PreparedTour {
             arrival: ArrivalGoal::FlybyOnly,
             spacecraft: Spacecraft::default(),
             vehicle: None,
-            ephemeris_name: String::new(),
+            ephemeris_name: model.name(),
+            model: model.clone(),
+            mu_sun: model.mu_sun(),
         }
     }
 

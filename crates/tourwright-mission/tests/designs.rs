@@ -399,3 +399,53 @@ fn user_body_rendezvous_uses_the_osculating_orbit() {
     let s = o.state(el.epoch.tdb()).unwrap();
     assert_relative_eq!(s.r.norm(), el.q_au * AU_KM, max_relative = 1e-10);
 }
+
+#[test]
+fn mga_benchmark_model_reproduces_the_cassini1_check_values() {
+    use tourwright_astro::time::{Tdb, TimeScale};
+    let p = Path::new(env!("CARGO_MANIFEST_DIR")).join("../../benches/mga/cassini1.tour.ron");
+    let mut d = files::load(&p).unwrap();
+    // The published Cassini1 optimum (decision vector from memory) and the check values computed
+    // from it with an independent implementation of the benchmark model
+    // (../shared/reference/mga-benchmark-model.md).
+    let t0 = -789.8117;
+    let tof = [
+        158.302027105278,
+        449.385873819743,
+        54.7489684339665,
+        1024.36205846918,
+        4552.30796805542,
+    ];
+    let mut t = Tdb::from_mjd2000(t0);
+    d.stops[0].epoch = Epoch::from_tdb(t, TimeScale::Tdb);
+    for (k, dt) in tof.iter().enumerate() {
+        t = t.plus_days(*dt);
+        d.stops[k + 1].epoch = Epoch::from_tdb(t, TimeScale::Tdb);
+    }
+    let e = evaluate(&d);
+    assert!(e.complete, "{:?}", e.warnings);
+    assert!((e.launch.vinf - 2.7546).abs() < 5e-4, "{}", e.launch.vinf);
+    let sw = |k: usize| e.stops[k].swingby.unwrap();
+    for (k, dv, rp) in [
+        (1, 1.0906, 6_352.0),
+        (2, 0.6158, 8_882.0),
+        (3, 0.0000, 6_778.0),
+        (4, 0.0000, 833_991.0),
+    ] {
+        let s = sw(k);
+        assert!(
+            (s.powered_dv_km_s - dv).abs() < 5e-4,
+            "stop {k}: Δv {}",
+            s.powered_dv_km_s
+        );
+        let r = s.rp_km.unwrap();
+        assert!((r - rp).abs() < 2.0 + 1e-5 * rp, "stop {k}: r_p {r}");
+    }
+    assert!(
+        (e.arrival.dv_km_s - 0.4697).abs() < 5e-4,
+        "{}",
+        e.arrival.dv_km_s
+    );
+    let total = e.launch.vinf + e.ledger.total_dv_km_s;
+    assert!((total - 4.93073).abs() < 5e-4, "total {total}");
+}

@@ -157,6 +157,7 @@ pub fn compare(
         return None;
     }
     let mut template = PreparedTour::two_stop(
+        &tour.model,
         tour.stops[0].body.clone(),
         tour.stops[n - 1].body.clone(),
         t_launch,

@@ -247,6 +247,7 @@ pub fn compute(
         .collect();
     progress.set_total(ny as u64);
     let mut template = PreparedTour::two_stop(
+        catalog.model(),
         from,
         to,
         d0,

@@ -1,7 +1,5 @@
 //! Launch and arrival figures, heliocentric energies along the tour, and the Δv and mass ledger.
 
-use tourwright_astro::constants::MU_SUN;
-
 use super::{Evaluation, Ledger, Warning};
 use crate::arrival::arrival_dv;
 use crate::launch;
@@ -53,7 +51,7 @@ pub fn arrival(tour: &PreparedTour, out: &mut Evaluation) {
 
 /// Heliocentric speed and specific energy before and after each stop (at the body's position:
 /// patched conics treat every stop as instantaneous there).
-pub fn energies(out: &mut Evaluation) {
+pub fn energies(mu_sun: f64, out: &mut Evaluation) {
     let n = out.stops.len();
     for (k, s) in out.stops.iter_mut().enumerate() {
         let r = s.body_state.r.norm();
@@ -65,8 +63,8 @@ pub fn energies(out: &mut Evaluation) {
         };
         s.speed_before = vin.norm();
         s.speed_after = vout.norm();
-        s.energy_before = 0.5 * vin.norm_squared() - MU_SUN / r;
-        s.energy_after = 0.5 * vout.norm_squared() - MU_SUN / r;
+        s.energy_before = 0.5 * vin.norm_squared() - mu_sun / r;
+        s.energy_after = 0.5 * vout.norm_squared() - mu_sun / r;
     }
 }
 

@@ -2,7 +2,7 @@
 //! shaped swing-by, drawing samples and the closest approach to the next body.
 
 use tourwright_astro::bodies::BodyData;
-use tourwright_astro::constants::{DAY_S, MU_SUN};
+use tourwright_astro::constants::DAY_S;
 use tourwright_astro::flyby;
 use tourwright_astro::kepler::{self, KeplerError};
 use tourwright_astro::lambert;
@@ -56,6 +56,7 @@ pub fn ballistic_arrival(
     planet: &State,
     vinf_out: &Vec3,
     tof_s: f64,
+    mu_sun: f64,
 ) -> Result<State, KeplerError> {
     kepler::propagate(
         &State {
@@ -63,7 +64,7 @@ pub fn ballistic_arrival(
             v: planet.v + vinf_out,
         },
         tof_s,
-        MU_SUN,
+        mu_sun,
     )
 }
 
@@ -87,7 +88,7 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
     };
     if let Some((alt, aim)) = shaped {
         let vout = shaped_vinf_out(&a.body.data, &out.stops[k].vinf_in, alt, aim);
-        match ballistic_arrival(&from, &vout, tof) {
+        match ballistic_arrival(&from, &vout, tof, tour.mu_sun) {
             Ok(end) => {
                 leg.v_depart = from.v + vout;
                 leg.v_arrive = end.v;
@@ -101,7 +102,15 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
         }
     } else {
         let l = &tour.legs[k];
-        match lambert::solve_revs(&from.r, &to.r, tof, MU_SUN, l.direction, l.revs, l.branch) {
+        match lambert::solve_revs(
+            &from.r,
+            &to.r,
+            tof,
+            tour.mu_sun,
+            l.direction,
+            l.revs,
+            l.branch,
+        ) {
             Ok(s) => {
                 leg.v_depart = s.v1;
                 leg.v_arrive = s.v2;
@@ -124,6 +133,7 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
         },
         tof,
         opts.samples_per_leg,
+        tour.mu_sun,
     );
     out.stops[k].v_helio_out = leg.v_depart;
     out.stops[k].vinf_out = leg.v_depart - from.v;
@@ -137,7 +147,7 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
     out.legs.push(leg);
     if shaped.is_some() {
         let miss = (arrive.r - to.r).norm();
-        let closest = closest_approach(&depart, a.t, tof, &b.body);
+        let closest = closest_approach(&depart, a.t, tof, &b.body, tour.mu_sun);
         if let Some(sw) = out.stops[k].swingby.as_mut() {
             sw.miss_km = rules::shown(miss);
             sw.closest_approach = closest;
@@ -159,6 +169,7 @@ fn push_samples(
     s0: State,
     tof: f64,
     m: usize,
+    mu_sun: f64,
 ) -> std::ops::Range<usize> {
     let start = out.samples.len();
     if m >= 2 {
@@ -167,7 +178,7 @@ fn push_samples(
         for j in 0..m {
             if j > 0 {
                 // A failed step keeps the previous point: the drawing stays finite.
-                cur = kepler::propagate(&cur, dt, MU_SUN).unwrap_or(cur);
+                cur = kepler::propagate(&cur, dt, mu_sun).unwrap_or(cur);
             }
             out.samples.push(Sample {
                 t: Tdb(t0.0 + dt * j as f64),
@@ -180,9 +191,15 @@ fn push_samples(
 
 /// Closest approach of an arc to a body: a coarse scan of 64 steps, then golden-section
 /// refinement around the best one.
-pub fn closest_approach(depart: &State, t0: Tdb, tof: f64, body: &Body) -> Option<(f64, Tdb)> {
+pub fn closest_approach(
+    depart: &State,
+    t0: Tdb,
+    tof: f64,
+    body: &Body,
+    mu_sun: f64,
+) -> Option<(f64, Tdb)> {
     let dist = |dt: f64| -> Option<f64> {
-        let sc = kepler::propagate(depart, dt, MU_SUN).ok()?;
+        let sc = kepler::propagate(depart, dt, mu_sun).ok()?;
         let b = body.state(Tdb(t0.0 + dt)).ok()?;
         Some((sc.r - b.r).norm())
     };

@@ -221,6 +221,24 @@ pub enum Warning {
         /// Minimum, km.
         min_km: f64,
     },
+    /// A swing-by's v∞ is below its minimum.
+    VinfBelowMinimum {
+        /// Stop index.
+        stop: usize,
+        /// v∞ arriving, km/s.
+        vinf: f64,
+        /// Minimum, km/s.
+        min: f64,
+    },
+    /// A powered swing-by's impulse is over its design limit.
+    PoweredDvOverLimit {
+        /// Stop index.
+        stop: usize,
+        /// Impulse, km/s.
+        dv: f64,
+        /// Limit, km/s.
+        max: f64,
+    },
     /// The required turn cannot be made (v∞ reversal or zero v∞).
     TurnImpossible {
         /// Stop index.
@@ -292,6 +310,16 @@ impl fmt::Display for Warning {
                 "stop {}: periapsis altitude {altitude_km:.0} km is below the minimum {min_km:.0} km",
                 stop + 1
             ),
+            Warning::VinfBelowMinimum { stop, vinf, min } => write!(
+                f,
+                "stop {}: v∞ {vinf:.2} km/s is below the swing-by minimum {min:.2} km/s",
+                stop + 1
+            ),
+            Warning::PoweredDvOverLimit { stop, dv, max } => write!(
+                f,
+                "stop {}: powered swing-by Δv {dv:.3} km/s is over the design limit {max:.3} km/s",
+                stop + 1
+            ),
             Warning::TurnImpossible { stop } => write!(
                 f,
                 "stop {}: the required turn cannot be made by a swing-by",
@@ -343,6 +371,8 @@ impl Warning {
         matches!(
             self,
             Warning::AltitudeBelowMinimum { .. }
+                | Warning::VinfBelowMinimum { .. }
+                | Warning::PoweredDvOverLimit { .. }
                 | Warning::C3OverLimit { .. }
                 | Warning::TurnImpossible { .. }
                 | Warning::DlaOutOfRange { .. }
@@ -459,7 +489,7 @@ pub fn evaluate(tour: &PreparedTour, opts: &EvalOptions, out: &mut Evaluation) {
     }
     budget::launch(tour, out);
     budget::arrival(tour, out);
-    budget::energies(out);
+    budget::energies(tour.mu_sun, out);
     budget::ledger(tour, out);
     out.complete = out.legs.len() == n - 1 && out.legs.iter().all(|l| l.solved);
     budget::drop_non_finite(out);

@@ -89,6 +89,22 @@ pub fn finish(tour: &PreparedTour, k: usize, out: &mut Evaluation) {
             });
         }
     }
+    let stop = &tour.stops[k];
+    let v = vin.norm();
+    if v < stop.min_vinf_km_s {
+        out.warnings.push(Warning::VinfBelowMinimum {
+            stop: k,
+            vinf: v,
+            min: stop.min_vinf_km_s,
+        });
+    }
+    if sw.powered_dv_km_s > stop.max_powered_dv_km_s + 1e-9 {
+        out.warnings.push(Warning::PoweredDvOverLimit {
+            stop: k,
+            dv: sw.powered_dv_km_s,
+            max: stop.max_powered_dv_km_s,
+        });
+    }
     out.stops[k].dv_km_s = sw.powered_dv_km_s;
     out.stops[k].swingby = Some(sw);
 }
