@@ -193,9 +193,9 @@ pub enum Command {
         /// Wall-clock limit, seconds (optional; results then depend on machine speed).
         #[arg(long)]
         time: Option<f64>,
-        /// Evaluation budget.
-        #[arg(long, default_value_t = 400_000)]
-        evals: u64,
+        /// Evaluation budget (default 400 000; with --time and no --evals, the time alone).
+        #[arg(long)]
+        evals: Option<u64>,
         /// Objective (default: the design's).
         #[arg(long, value_enum)]
         objective: Option<ObjectiveArg>,

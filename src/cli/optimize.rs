@@ -18,7 +18,7 @@ pub fn run(
     ephemeris: Option<EphemerisChoice>,
     seed: u64,
     time: Option<f64>,
-    evals: u64,
+    evals: Option<u64>,
     objective: Option<ObjectiveArg>,
     out: &Path,
     front: Option<PathBuf>,
@@ -39,7 +39,7 @@ pub fn run(
     let before = p.score(&p.vector_of(&p.tour), &mut Workspace::new(&p));
     let opts = OptimizeOptions {
         seed,
-        max_evals: evals,
+        max_evals: evals.unwrap_or(if time.is_some() { u64::MAX } else { 400_000 }),
         time_limit_s: time,
         ..Default::default()
     };
