@@ -12,7 +12,7 @@ use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate};
 use tourwright_mission::{Objective, PreparedTour};
 
 use crate::job::Progress;
-use crate::polish::{LocalOptions, bfgs_box, clamp_safe, compass_search};
+use crate::polish::{LocalOptions, auglag_box, clamp_safe, compass_search};
 
 /// A small, fast, seedable generator (xoshiro256**, Blackman & Vigna 2018).
 #[derive(Clone, Debug)]
@@ -89,6 +89,10 @@ pub struct Problem {
     pub max_total_tof_days: Option<f64>,
     /// Per leg: the body's orbital period (days) when the leg returns to the body it left.
     pub resonant_periods: Vec<Option<f64>>,
+    /// The limits kept, each as `g ≤ 0`.
+    pub constraints: Vec<Constraint>,
+    /// Which variables are integer choices (held fixed by the local descent).
+    pub integer: Vec<bool>,
 }
 
 impl Problem {
@@ -132,6 +136,26 @@ impl Problem {
                 })
             })
             .collect();
+        let mut constraints = Vec::new();
+        for (k, st) in tour.stops.iter().enumerate() {
+            if st.kind == tourwright_mission::evaluate::StopKind::SwingBy && st.body.data.mu > 0.0 {
+                constraints.push(Constraint::Altitude { stop: k });
+                constraints.push(Constraint::MinVinf { stop: k });
+                constraints.push(Constraint::MaxPoweredDv { stop: k });
+            }
+        }
+        if let Some(m) = tour.launch.max_c3_km2_s2 {
+            constraints.push(Constraint::MaxC3(m));
+        }
+        if let Some(m) = d.search.max_total_tof_days {
+            constraints.push(Constraint::MaxTof(m));
+        }
+        if tour.launch.min_dla_deg.is_some() || tour.launch.max_dla_deg.is_some() {
+            constraints.push(Constraint::DlaBand(
+                tour.launch.min_dla_deg.unwrap_or(-90.0),
+                tour.launch.max_dla_deg.unwrap_or(90.0),
+            ));
+        }
         Ok(Problem {
             tour,
             lo,
@@ -139,6 +163,8 @@ impl Problem {
             objective: d.search.objective,
             max_total_tof_days: d.search.max_total_tof_days,
             resonant_periods,
+            constraints,
+            integer: vec![false; d.stops.len()],
         })
     }
 
@@ -172,49 +198,139 @@ impl Problem {
         x
     }
 
-    /// Penalised score of `x` (smaller is better), using `work` as scratch. Penalties (ours, in
-    /// the objective's units): altitude deficit 20 km/s per periapsis-radius fraction, C3 excess
-    /// 0.1 km/s per km²/s², total-TOF excess 0.01 km/s per day; ×1000 for mass objectives.
-    pub fn score(&self, x: &[f64], work: &mut Workspace) -> f64 {
+    /// The objective at `x` (smaller is better) and the constraints `g[j] ≤ 0` of
+    /// [`Problem::constraints`], scaled to order one. An evaluation with a leg that has no
+    /// solution returns 1e9 with every constraint violated.
+    pub fn evaluate_parts(&self, x: &[f64], work: &mut Workspace, g: &mut [f64]) -> f64 {
         self.apply(x, &mut work.tour);
         evaluate(&work.tour, &EvalOptions::SEARCH, &mut work.eval);
         let e = &work.eval;
         let base = self.objective.value(e);
         if !base.is_finite() {
+            g.iter_mut().for_each(|v| *v = 1.0);
             return 1e9;
         }
-        let mut pen = 0.0;
-        for w in &e.warnings {
-            match *w {
-                Warning::AltitudeBelowMinimum {
-                    stop,
-                    altitude_km,
-                    min_km,
-                } => {
-                    let r = self.tour.stops[stop].body.data.radius_km;
-                    let deficit = min_km - altitude_km;
-                    // At least the benchmark set's 0.01 km/s per km, and a step below the surface.
-                    pen += (20.0 * deficit / (r + min_km).max(1.0)).max(0.01 * deficit);
-                    if altitude_km < 0.0 {
-                        pen += 10.0 - 0.01 * altitude_km;
+        let turn_impossible = |k: usize| {
+            e.warnings
+                .iter()
+                .any(|w| matches!(w, Warning::TurnImpossible { stop } if *stop == k))
+        };
+        for (j, c) in self.constraints.iter().enumerate() {
+            let v = match *c {
+                Constraint::Altitude { stop } => {
+                    let s = &self.tour.stops[stop];
+                    let scale = (s.body.data.radius_km + s.min_altitude_km).max(1.0);
+                    match e.stops[stop].swingby.and_then(|w| w.altitude_km) {
+                        Some(alt) => (s.min_altitude_km - alt) / scale,
+                        None if turn_impossible(stop) => 1.0,
+                        None => -1.0,
                     }
                 }
-                Warning::VinfBelowMinimum { vinf, min, .. } => pen += 5.0 * (min - vinf),
-                Warning::PoweredDvOverLimit { dv, max, .. } => pen += 5.0 * (dv - max),
-                Warning::C3OverLimit { c3, max } => pen += 0.1 * (c3 - max),
-                Warning::TurnImpossible { .. } => pen += 10.0,
-                _ => {}
+                Constraint::MinVinf { stop } => {
+                    self.tour.stops[stop].min_vinf_km_s - e.stops[stop].vinf_in.norm()
+                }
+                Constraint::MaxPoweredDv { stop } => {
+                    e.stops[stop].dv_km_s - self.tour.stops[stop].max_powered_dv_km_s
+                }
+                Constraint::MaxC3(max) => (e.launch.c3 - max) / max.max(1.0),
+                Constraint::MaxTof(max) => (e.total_tof_days() - max) / max.max(1.0),
+                Constraint::DlaBand(lo, hi) => {
+                    (lo - e.launch.dla_deg).max(e.launch.dla_deg - hi) / 10.0
+                }
+            };
+            g[j] = if v.is_finite() { v } else { 1.0 };
+        }
+        base
+    }
+
+    /// The penalty weight of each constraint, in the objective's units per unit of `g`: ours,
+    /// chosen so that a violation never pays. Altitude: at least the benchmark set's 0.01 km/s per
+    /// km and 20 km/s per periapsis-radius fraction; v∞ and powered Δv: 5 km/s per km/s; C3 0.1
+    /// km/s per km²/s²; TOF 0.01 km/s per day; declination 0.1 km/s per degree. Scaled by the
+    /// objective's units (×1000 for kilograms, ×10 for C3, ×100 for days).
+    pub fn weight(&self, c: &Constraint) -> f64 {
+        let unit = match self.objective {
+            Objective::DeliveredMass => 1000.0,
+            Objective::LaunchC3 => 10.0,
+            Objective::TimeOfFlight => 100.0,
+            _ => 1.0,
+        };
+        unit * match *c {
+            Constraint::Altitude { stop } => {
+                let s = &self.tour.stops[stop];
+                (0.01 * (s.body.data.radius_km + s.min_altitude_km)).max(20.0)
+            }
+            Constraint::MinVinf { .. } | Constraint::MaxPoweredDv { .. } => 5.0,
+            Constraint::MaxC3(max) => 0.1 * max.max(1.0),
+            Constraint::MaxTof(max) => 0.01 * max.max(1.0),
+            Constraint::DlaBand(..) => 1.0,
+        }
+    }
+
+    /// Penalised score of `x` (smaller is better): the objective plus each constraint's weight
+    /// times its violation. `work` is scratch.
+    pub fn score(&self, x: &[f64], work: &mut Workspace) -> f64 {
+        let mut g = std::mem::take(&mut work.g);
+        g.resize(self.constraints.len(), 0.0);
+        let base = self.evaluate_parts(x, work, &mut g);
+        let v = self.penalised(base, &g);
+        work.g = g;
+        v
+    }
+
+    /// The score of an objective value and its constraint values.
+    pub fn penalised(&self, base: f64, g: &[f64]) -> f64 {
+        let mut v = base;
+        if base < 1e9 {
+            for (c, gj) in self.constraints.iter().zip(g) {
+                if *gj > 0.0 {
+                    v += self.weight(c) * gj;
+                }
             }
         }
-        if let Some(m) = self.max_total_tof_days {
-            pen += 0.01 * (e.total_tof_days() - m).max(0.0);
-        }
-        if self.objective == Objective::DeliveredMass {
-            pen *= 1000.0;
-        }
-        let v = base + pen;
-        if v.is_finite() { v } else { 1e9 }
+        if v.is_finite() { v.min(1e9) } else { 1e9 }
     }
+
+    /// True when every constraint holds at `x` (the altitude within the program's tolerance).
+    pub fn feasible(&self, x: &[f64], work: &mut Workspace) -> bool {
+        let mut g = vec![0.0; self.constraints.len()];
+        let base = self.evaluate_parts(x, work, &mut g);
+        base < 1e9
+            && self.constraints.iter().zip(&g).all(|(c, gj)| match *c {
+                Constraint::Altitude { stop } => {
+                    let s = &self.tour.stops[stop];
+                    let scale = (s.body.data.radius_km + s.min_altitude_km).max(1.0);
+                    *gj * scale <= tourwright_mission::rules::ALTITUDE_TOLERANCE_KM
+                }
+                _ => *gj <= 1e-9,
+            })
+    }
+}
+
+/// A limit the optimiser keeps, as `g ≤ 0`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Constraint {
+    /// A swing-by's periapsis altitude at least its minimum (scaled by the minimum radius).
+    Altitude {
+        /// Stop index.
+        stop: usize,
+    },
+    /// A swing-by's v∞ at least its minimum, km/s.
+    MinVinf {
+        /// Stop index.
+        stop: usize,
+    },
+    /// A powered swing-by's impulse within its limit, km/s.
+    MaxPoweredDv {
+        /// Stop index.
+        stop: usize,
+    },
+    /// Launch C3 under the limit (relative).
+    MaxC3(f64),
+    /// Total time of flight under the limit (relative).
+    MaxTof(f64),
+    /// Launch declination inside the band (per 10°).
+    DlaBand(f64, f64),
 }
 
 /// Scratch space for scoring: a tour copy and an evaluation whose buffers are reused.
@@ -224,6 +340,8 @@ pub struct Workspace {
     pub tour: PreparedTour,
     /// Reused evaluation.
     pub eval: Evaluation,
+    /// Reused constraint values.
+    pub g: Vec<f64>,
 }
 
 impl Workspace {
@@ -232,6 +350,7 @@ impl Workspace {
         Workspace {
             tour: p.tour.clone(),
             eval: Evaluation::default(),
+            g: vec![0.0; p.constraints.len()],
         }
     }
 }
@@ -460,10 +579,10 @@ pub struct HopSettings {
 impl Default for HopSettings {
     fn default() -> Self {
         HopSettings {
-            radius: 0.05,
-            fails_before_restart: 40,
-            local_evals: 600,
-            de_share: 0.2,
+            radius: 0.02,
+            fails_before_restart: 20,
+            local_evals: 2000,
+            de_share: 0.1,
             chains: 4,
         }
     }
@@ -474,13 +593,16 @@ struct Chain {
     rng: Rng,
     x: Vec<f64>,
     fx: f64,
+    /// The best point this chain ever held (a restart forgets `x`, not this).
+    best: (Vec<f64>, f64),
     fails: usize,
     work: Workspace,
     trial: Vec<f64>,
 }
 
 impl Chain {
-    /// Quasi-Newton descent from `x0`; the evaluations spent.
+    /// Local descent from `x0` (augmented Lagrangian over the problem's constraints, quasi-Newton
+    /// inner solves): the point, its penalised score and the evaluations spent.
     fn descend(
         &mut self,
         p: &Problem,
@@ -489,32 +611,38 @@ impl Chain {
         progress: &Progress,
     ) -> (Vec<f64>, f64, u64) {
         let work = &mut self.work;
-        let mut f = |x: &[f64]| {
+        let mut fg = |x: &[f64], g: &mut [f64]| {
             if progress.is_cancelled() {
+                g.iter_mut().for_each(|v| *v = 1.0);
                 return f64::INFINITY;
             }
             progress.count_evals(1);
-            p.score(x, work)
+            p.evaluate_parts(x, work, g)
         };
-        let (x, fx, n) = bfgs_box(
-            &mut f,
+        let r = auglag_box(
+            &mut fg,
+            p.constraints.len(),
             x0,
             &p.lo,
             &p.hi,
-            &[],
+            &p.integer,
             &LocalOptions {
                 max_evals: hs.local_evals,
+                fd_step: 1e-9,
                 ..Default::default()
             },
         );
-        (x, fx, n as u64)
+        let score = p.penalised(r.f, &r.g);
+        (r.x, score, r.evals as u64)
     }
 
-    /// A new starting point: a member of the global population or a uniform draw whose
-    /// same-body legs sit on a resonance (a whole number of the body's periods, within the
-    /// bounds).
+    /// A new starting point: now and then a member of the global population, mostly a uniform
+    /// draw whose same-body legs sit just short of a resonance (a whole number of the body's
+    /// periods, within the bounds). Just short, because a zero-revolution arc that returns to a
+    /// body after m of its periods sweeps nearly 360°: a little more time and the arc flips to
+    /// an almost straight one.
     fn fresh_start(&mut self, p: &Problem, pool: &[Vec<f64>]) -> Vec<f64> {
-        if !pool.is_empty() && self.rng.uniform() < 0.5 {
+        if !pool.is_empty() && self.rng.uniform() < 0.25 {
             return pool[self.rng.below(pool.len())].clone();
         }
         let mut x: Vec<f64> = (0..p.dim())
@@ -525,9 +653,9 @@ impl Chain {
             let (lo, hi) = (p.lo[k + 1], p.hi[k + 1]);
             let kmin = (lo / period).ceil().max(1.0) as usize;
             let kmax = (hi / period).floor() as usize;
-            if kmax >= kmin && self.rng.uniform() < 0.7 {
+            if kmax >= kmin && self.rng.uniform() < 0.8 {
                 let m = kmin + self.rng.below(kmax - kmin + 1);
-                let t = m as f64 * period * (1.0 + 0.04 * (self.rng.uniform() - 0.5));
+                let t = m as f64 * period * (0.98 + 0.02 * self.rng.uniform());
                 x[k + 1] = clamp_safe(t, lo, hi);
             }
         }
@@ -556,6 +684,9 @@ impl Chain {
         };
         let (x, fx, n) = self.descend(p, &start, hs, progress);
         if fx < self.fx - 1e-10 * self.fx.abs().max(1.0) {
+            if fx < self.best.1 {
+                self.best = (x.clone(), fx);
+            }
             self.x = x;
             self.fx = fx;
             self.fails = 0;
@@ -675,6 +806,7 @@ pub fn optimize(
                 x: isl.pop[b].clone(),
                 // Chains beyond the islands' count start fresh.
                 fx: if k < n_isl { isl.fit[b] } else { f64::INFINITY },
+                best: (isl.pop[b].clone(), isl.fit[b]),
                 fails: 0,
                 work: Workspace::new(p),
                 trial: vec![0.0; d],
@@ -695,7 +827,10 @@ pub fn optimize(
             .sum();
         evals += used;
         progress.add(used);
-        let best = chains.iter().map(|c| c.fx).fold(f64::INFINITY, f64::min);
+        let best = chains
+            .iter()
+            .map(|c| c.best.1)
+            .fold(f64::INFINITY, f64::min);
         progress.offer_best(best);
         progress.set_message(format!("{evals} evaluations, best {best:.4}"));
         if want_front {
@@ -709,7 +844,7 @@ pub fn optimize(
     // Closing polish of the best point found by either phase.
     let mut best: (Vec<f64>, f64) = chains
         .iter()
-        .map(|c| (c.x.clone(), c.fx))
+        .map(|c| c.best.clone())
         .chain(islands.iter().map(|isl| {
             let b = isl.best_index();
             (isl.pop[b].clone(), isl.fit[b])
