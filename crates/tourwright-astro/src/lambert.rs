@@ -198,6 +198,85 @@ impl Geometry {
         (x0, it)
     }
 
+    /// Izzo's initial guess for the zero-revolution arc (2015, eq. 30); `t00` is T at x = 0.
+    #[inline]
+    fn initial_guess_zero_rev(&self, t00: f64) -> f64 {
+        let (l, t) = (self.lambda, self.t);
+        let t1 = 2.0 / 3.0 * (1.0 - l * l * l);
+        if t >= t00 {
+            -(t - t00) / (t - t00 + 4.0)
+        } else if t <= t1 {
+            t1 * (t1 - t) / (2.0 / 5.0 * (1.0 - l.powi(5)) * t) + 1.0
+        } else {
+            (t / t00).powf(std::f64::consts::LN_2 / (t1 / t00).ln()) - 1.0
+        }
+    }
+
+    /// T(x) and its first three derivatives for zero revolutions, sharing y = √(1 − λ²(1 − x²))
+    /// between the Lancaster-Blanchard form and the derivatives (Izzo 2015, eqs. 18-22).
+    #[inline]
+    fn tof_and_derivatives_zero_rev(&self, x: f64) -> (f64, f64, f64, f64) {
+        const BATTIN: f64 = 0.01;
+        const LAGRANGE: f64 = 0.2;
+        let l = self.lambda;
+        let l2 = l * l;
+        let umx2 = 1.0 - x * x;
+        let y = (1.0 - l2 * umx2).sqrt();
+        let dist = (x - 1.0).abs();
+        let tof = if dist < LAGRANGE && dist > BATTIN {
+            self.x2tof2(x, 0)
+        } else if dist < BATTIN {
+            let eta = y - l * x;
+            let s1 = 0.5 * (1.0 - l - x * eta);
+            let q = 4.0 / 3.0 * hypergeometric_f(s1, 1e-11);
+            (eta * eta * eta * q + 4.0 * l * eta) / 2.0
+        } else {
+            let e = -umx2;
+            let sq = e.abs().sqrt();
+            let gg = x * y - l * e;
+            let d = if e < 0.0 {
+                gg.clamp(-1.0, 1.0).acos()
+            } else {
+                (sq * (y - l * x) + gg).ln()
+            };
+            (x - l * y - d / sq) / e
+        };
+        let l3 = l2 * l;
+        let iy = 1.0 / y;
+        let iy3 = iy * iy * iy;
+        let inv = 1.0 / umx2;
+        let dt = inv * (3.0 * tof * x - 2.0 + 2.0 * l3 * x * iy);
+        let ddt = inv * (3.0 * tof + 5.0 * x * dt + 2.0 * (1.0 - l2) * l3 * iy3);
+        let dddt =
+            inv * (7.0 * x * ddt + 8.0 * dt - 6.0 * (1.0 - l2) * l2 * l3 * x * iy3 * iy * iy);
+        (tof, dt, ddt, dddt)
+    }
+
+    /// Householder iterations for zero revolutions with the fused T(x) and derivatives. The
+    /// method converges with order four (Householder 1970): once a step is below `eps^(1/3)` the
+    /// next correction would be far below `eps`, so the iteration stops there instead of paying
+    /// one more evaluation to confirm it.
+    #[inline]
+    fn householder_zero_rev(&self, mut x: f64, eps: f64, max_iter: u32) -> (f64, u32) {
+        let early = eps.sqrt().sqrt() * 0.05;
+        for it in 1..=max_iter {
+            let (tof, dt, ddt, dddt) = self.tof_and_derivatives_zero_rev(x);
+            let delta = tof - self.t;
+            let dt2 = dt * dt;
+            let xnew = x - delta * (dt2 - delta * ddt / 2.0)
+                / (dt * (dt2 - delta * ddt) + dddt * delta * delta / 6.0);
+            let err = (x - xnew).abs();
+            x = xnew;
+            if err < early {
+                return (x, it);
+            }
+            if !x.is_finite() {
+                break;
+            }
+        }
+        (f64::NAN, max_iter)
+    }
+
     /// Minimum non-dimensional TOF of the n-revolution family (Halley iterations).
     fn t_min(&self, n: u32) -> f64 {
         if self.lambda == 1.0 {
@@ -237,6 +316,116 @@ fn hypergeometric_f(z: f64, tol: f64) -> f64 {
     }
 }
 
+/// The geometry of one Lambert problem in Izzo's non-dimensional form, with the unit vectors the
+/// velocities are built from.
+struct Frame {
+    g: Geometry,
+    r1n: f64,
+    r2n: f64,
+    ir1: Vec3,
+    ir2: Vec3,
+    it1: Vec3,
+    it2: Vec3,
+    gamma: f64,
+    rho: f64,
+    sigma: f64,
+}
+
+impl Frame {
+    fn new(r1: &Vec3, r2: &Vec3, tof: f64, mu: f64, dir: Direction) -> Result<Frame, LambertError> {
+        if !(tof > 0.0) || !tof.is_finite() {
+            return Err(LambertError::NonPositiveTof(tof));
+        }
+        if !(mu > 0.0) || !mu.is_finite() {
+            return Err(LambertError::BadMu);
+        }
+        let r1n = r1.norm();
+        let r2n = r2.norm();
+        if !(r1n > 0.0 && r2n > 0.0 && r1n.is_finite() && r2n.is_finite()) {
+            return Err(LambertError::ZeroRadius);
+        }
+        let c = r2 - r1;
+        let cn = c.norm();
+        if cn <= 1e-14 * (r1n + r2n) {
+            return Err(LambertError::CoincidentPositions);
+        }
+        let s = (r1n + r2n + cn) / 2.0;
+        let ir1 = r1 * (1.0 / r1n);
+        let ir2 = r2 * (1.0 / r2n);
+        let h = ir1.cross(&ir2);
+        let hn = h.norm();
+        let ih = if hn > 1e-12 {
+            h * (1.0 / hn)
+        } else {
+            // Collinear (0°, 180° or 360°): any plane containing r1 works; take the one whose
+            // normal is nearest +z, or one containing x when r1 lies along z.
+            let fallback = ir1.cross(&Vec3::new(1.0, 0.0, 0.0));
+            let fallback = if fallback.norm() > 1e-8 {
+                fallback.normalize()
+            } else {
+                ir1.cross(&Vec3::new(0.0, 1.0, 0.0)).normalize()
+            };
+            fix_normal(&ir1, &fallback)
+        };
+        // λ² = 1 − c/s cancels badly near 180° (c → r1 + r2); the same quantity written as
+        // r1 r2 |î1 + î2|² / (4 s²) (from 1 + cos θ = |î1 + î2|²/2) keeps full precision there.
+        let mut lambda = (r1n * r2n * (ir1 + ir2).norm_squared()).sqrt() / (2.0 * s);
+        // ih is a unit vector and normal to both î1 and î2, so ih × î is a unit vector too.
+        let (mut it1, mut it2);
+        if ih.z < 0.0 {
+            lambda = -lambda;
+            it1 = ir1.cross(&ih);
+            it2 = ir2.cross(&ih);
+        } else {
+            it1 = ih.cross(&ir1);
+            it2 = ih.cross(&ir2);
+        }
+        if hn <= 1e-12 {
+            it1 /= it1.norm();
+            it2 /= it2.norm();
+        }
+        if dir == Direction::Retrograde {
+            lambda = -lambda;
+            it1 = -it1;
+            it2 = -it2;
+        }
+        // T = √(2μ/s³) tof and γ = √(μ s/2) share one square root.
+        let q = (mu / (2.0 * s)).sqrt();
+        let t = 2.0 * q / s * tof;
+        let rho = (r1n - r2n) / cn;
+        Ok(Frame {
+            g: Geometry { lambda, t },
+            r1n,
+            r2n,
+            ir1,
+            ir2,
+            it1,
+            it2,
+            gamma: q * s,
+            rho,
+            sigma: (1.0 - rho * rho).max(0.0).sqrt(),
+        })
+    }
+
+    /// Velocities at both ends for the solution x.
+    #[inline]
+    fn velocities(&self, x: f64) -> Option<(Vec3, Vec3)> {
+        let l = self.g.lambda;
+        let y = (1.0 - l * l * (1.0 - x * x)).sqrt();
+        if !(x.is_finite() && y.is_finite()) {
+            return None;
+        }
+        let (gamma, rho) = (self.gamma, self.rho);
+        let vr1 = gamma * ((l * y - x) - rho * (l * y + x)) / self.r1n;
+        let vr2 = -gamma * ((l * y - x) + rho * (l * y + x)) / self.r2n;
+        let vt = gamma * self.sigma * (y + l * x);
+        Some((
+            vr1 * self.ir1 + vt / self.r1n * self.it1,
+            vr2 * self.ir2 + vt / self.r2n * self.it2,
+        ))
+    }
+}
+
 /// Solve Lambert's problem for `r1` -> `r2` in `tof` seconds about a body of parameter `mu`,
 /// returning every solution with up to `max_revs` complete revolutions (capped at [`MAX_REVS`]).
 ///
@@ -251,62 +440,9 @@ pub fn solve(
     dir: Direction,
     max_revs: u32,
 ) -> Result<LambertSolutions, LambertError> {
-    if !(tof > 0.0) || !tof.is_finite() {
-        return Err(LambertError::NonPositiveTof(tof));
-    }
-    if !(mu > 0.0) {
-        return Err(LambertError::BadMu);
-    }
-    let r1n = r1.norm();
-    let r2n = r2.norm();
-    if !(r1n > 0.0 && r2n > 0.0 && r1n.is_finite() && r2n.is_finite()) {
-        return Err(LambertError::ZeroRadius);
-    }
-    let c = r2 - r1;
-    let cn = c.norm();
-    if cn <= 1e-14 * (r1n + r2n) {
-        return Err(LambertError::CoincidentPositions);
-    }
-    let s = (r1n + r2n + cn) / 2.0;
-    let ir1 = r1 / r1n;
-    let ir2 = r2 / r2n;
-    let h = ir1.cross(&ir2);
-    let hn = h.norm();
-    let ih = if hn > 1e-12 {
-        h / hn
-    } else {
-        // Collinear (0°, 180° or 360°): any plane containing r1 works; take the one whose normal is
-        // nearest +z, or one containing x when r1 lies along z.
-        let fallback = ir1.cross(&Vec3::new(1.0, 0.0, 0.0));
-        let fallback = if fallback.norm() > 1e-8 {
-            fallback.normalize()
-        } else {
-            ir1.cross(&Vec3::new(0.0, 1.0, 0.0)).normalize()
-        };
-        fix_normal(&ir1, &fallback)
-    };
-    // λ² = 1 − c/s cancels badly near 180° (c → r1 + r2); the same quantity written as
-    // r1 r2 |î1 + î2|² / (4 s²) (from 1 + cos θ = |î1 + î2|²/2) keeps full precision there.
-    let mut lambda = (r1n * r2n).sqrt() * (ir1 + ir2).norm() / (2.0 * s);
-    let (mut it1, mut it2);
-    if ih.z < 0.0 {
-        lambda = -lambda;
-        it1 = ir1.cross(&ih);
-        it2 = ir2.cross(&ih);
-    } else {
-        it1 = ih.cross(&ir1);
-        it2 = ih.cross(&ir2);
-    }
-    it1 /= it1.norm();
-    it2 /= it2.norm();
-    if dir == Direction::Retrograde {
-        lambda = -lambda;
-        it1 = -it1;
-        it2 = -it2;
-    }
-    let t = (2.0 * mu / (s * s * s)).sqrt() * tof;
-    let g = Geometry { lambda, t };
-
+    let f = Frame::new(r1, r2, tof, mu, dir)?;
+    let g = &f.g;
+    let (lambda, t) = (g.lambda, g.t);
     // Revolutions possible.
     let mut n_max = (t / PI).floor() as u32;
     let t00 = lambda.acos() + lambda * (1.0 - lambda * lambda).sqrt();
@@ -329,21 +465,15 @@ pub fn solve(
         sols: [dummy; MAX_SOLUTIONS],
     };
 
-    let gamma = (mu * s / 2.0).sqrt();
-    let rho = (r1n - r2n) / cn;
-    let sigma = (1.0 - rho * rho).max(0.0).sqrt();
     let mut push = |x: f64, revs: u32, branch: Branch, iters: u32| -> bool {
-        let y = (1.0 - lambda * lambda * (1.0 - x * x)).sqrt();
         // Reject non-converged iterates (they show up as a TOF mismatch), never return NaN.
         let tof_x = g.x2tof(x, revs);
-        if !x.is_finite() || !y.is_finite() || (tof_x - t).abs() > 1e-7 * t.max(1.0) {
+        if !tof_x.is_finite() || (tof_x - t).abs() > 1e-7 * t.max(1.0) {
             return false;
         }
-        let vr1 = gamma * ((lambda * y - x) - rho * (lambda * y + x)) / r1n;
-        let vr2 = -gamma * ((lambda * y - x) + rho * (lambda * y + x)) / r2n;
-        let vt = gamma * sigma * (y + lambda * x);
-        let v1 = vr1 * ir1 + vt / r1n * it1;
-        let v2 = vr2 * ir2 + vt / r2n * it2;
+        let Some((v1, v2)) = f.velocities(x) else {
+            return false;
+        };
         out.sols[out.n] = LambertSolution {
             v1,
             v2,
@@ -356,15 +486,7 @@ pub fn solve(
         true
     };
 
-    // Zero-revolution initial guess (Izzo 2015, eq. 30).
-    let t1 = 2.0 / 3.0 * (1.0 - lambda * lambda * lambda);
-    let x0 = if t >= t00 {
-        -(t - t00) / (t - t00 + 4.0)
-    } else if t <= t1 {
-        t1 * (t1 - t) / (2.0 / 5.0 * (1.0 - lambda.powi(5)) * t) + 1.0
-    } else {
-        (t / t00).powf(std::f64::consts::LN_2 / (t1 / t00).ln()) - 1.0
-    };
+    let x0 = g.initial_guess_zero_rev(t00);
     let (x, it) = g.householder(x0, 0, 1e-11, 25);
     let ok0 = push(x, 0, Branch::Left, it);
     for i in 1..=n_max {
@@ -402,11 +524,22 @@ pub fn solve_single(
     mu: f64,
     dir: Direction,
 ) -> Result<LambertSolution, LambertError> {
-    let sols = solve(r1, r2, tof, mu, dir, 0)?;
-    sols.as_slice()
-        .first()
-        .copied()
-        .ok_or(LambertError::NoConvergence)
+    // The single-revolution path skips what only multi-revolution arcs need: the largest
+    // revolution count and its minimum-time (Halley) iterations, and the solution set.
+    let f = Frame::new(r1, r2, tof, mu, dir)?;
+    let g = &f.g;
+    let l = g.lambda;
+    let t00 = l.acos() + l * (1.0 - l * l).sqrt();
+    let (x, iterations) = g.householder_zero_rev(g.initial_guess_zero_rev(t00), 1e-11, 25);
+    let (v1, v2) = f.velocities(x).ok_or(LambertError::NoConvergence)?;
+    Ok(LambertSolution {
+        v1,
+        v2,
+        revs: 0,
+        branch: Branch::Left,
+        x,
+        iterations,
+    })
 }
 
 /// The solution with exactly `revs` revolutions on `branch`, or a typed error saying how many
