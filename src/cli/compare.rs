@@ -46,12 +46,9 @@ pub fn run(
             },
             "summary": c.summary(),
         });
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&v).map_err(|e| e.to_string())?
-        );
+        super::out(&serde_json::to_string_pretty(&v).map_err(|e| e.to_string())?);
     } else {
-        print!("{}", compare_text(&c));
+        super::out(&compare_text(&c));
     }
     Ok(())
 }

@@ -17,12 +17,9 @@ pub fn run(file: &Path, ephemeris: Option<EphemerisChoice>, json: bool) -> CliRe
     evaluate(&tour, &EvalOptions::default(), &mut e);
     if json {
         let v = report::to_json(&tour, &e);
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&v).map_err(|e| e.to_string())?
-        );
+        super::out(&serde_json::to_string_pretty(&v).map_err(|e| e.to_string())?);
     } else {
-        print!("{}", report::to_text(&tour, &e));
+        super::out(&report::to_text(&tour, &e));
     }
     Ok(())
 }

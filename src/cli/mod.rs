@@ -206,21 +206,21 @@ pub enum Command {
         #[arg(long)]
         front: Option<PathBuf>,
     },
-    /// Explore planet sequences and rank them.
+    /// Explore planet sequences and rank them (or merge the shards of a survey).
     Explore {
         /// Launch body.
-        #[arg(long)]
-        from: String,
+        #[arg(long, required_unless_present = "merge")]
+        from: Option<String>,
         /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: the design's.
+        /// (the MGA benchmark set's analytic model); default: mean-elements.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
         /// Target body.
-        #[arg(long)]
-        to: String,
+        #[arg(long, required_unless_present = "merge")]
+        to: Option<String>,
         /// Launch period START..END.
-        #[arg(long)]
-        launch: String,
+        #[arg(long, required_unless_present = "merge")]
+        launch: Option<String>,
         /// Bodies allowed for swing-bys, comma-separated letters or names (V,E,M,J).
         #[arg(long, default_value = "V,E,M,J")]
         via: String,
@@ -242,6 +242,16 @@ pub enum Command {
         /// Seed.
         #[arg(long, default_value_t = 1)]
         seed: u64,
+        /// Explore only share K of N (1-based K), e.g. 3/16: for array jobs of a scheduler.
+        /// Writes JSON lines to --jsonl (or to standard output).
+        #[arg(long)]
+        shard: Option<String>,
+        /// Where a shard writes its JSON lines.
+        #[arg(long)]
+        jsonl: Option<PathBuf>,
+        /// Rank the union of shards: folders (or files) of JSON lines written by --shard.
+        #[arg(long, num_args = 1.., conflicts_with_all = ["from", "to", "launch", "shard"])]
+        merge: Vec<PathBuf>,
         /// Folder for the ranked designs (one file per sequence).
         #[arg(long)]
         out: Option<PathBuf>,
@@ -331,6 +341,9 @@ pub fn run(cmd: Command) -> CliResult {
             evals,
             seed,
             out,
+            shard,
+            jsonl,
+            merge,
         } => explore::run(explore::Args {
             from,
             ephemeris,
@@ -343,6 +356,9 @@ pub fn run(cmd: Command) -> CliResult {
             max_c3,
             evals,
             seed,
+            shard,
+            jsonl,
+            merge,
             out,
         }),
     }
@@ -364,6 +380,16 @@ fn load_with(path: &Path, ephemeris: Option<EphemerisChoice>) -> Result<MissionD
 
 fn prepare(path: &Path, d: &MissionDesign) -> Result<PreparedTour, String> {
     PreparedTour::prepare(d).map_err(|e| format!("{}: {e}", path.display()))
+}
+
+/// Print a line to standard output; a closed pipe (`| head`) ends the program quietly instead of
+/// panicking.
+pub(crate) fn out(text: &str) {
+    use std::io::Write as _;
+    let mut so = std::io::stdout().lock();
+    if writeln!(so, "{}", text.trim_end_matches('\n')).is_err() {
+        std::process::exit(0);
+    }
 }
 
 fn write(path: &Path, text: &str) -> CliResult {

@@ -45,22 +45,25 @@ pub fn run(
     };
     let t = std::time::Instant::now();
     let r = optimize::optimize(&p, &opts, &Progress::new(), front.is_some());
-    for (s, e) in d.stops.iter_mut().zip(&r.epochs) {
-        s.epoch = *e;
+    tourwright_mission::Edit::ApplySchedule {
+        epochs: r.epochs.clone(),
+        legs: r.legs.clone(),
     }
-    println!(
+    .apply(&mut d)
+    .map_err(|e| e.to_string())?;
+    super::out(&format!(
         "objective {}: {:.4} -> {:.4} after {} evaluations in {:.2} s",
         d.search.objective.label(),
         before,
         r.value,
         r.evaluations,
         t.elapsed().as_secs_f64()
-    );
+    ));
     files::save(&d, out).map_err(|e| e.to_string())?;
     let tour = prepare(out, &d)?;
     let mut e = Evaluation::default();
     evaluate(&tour, &EvalOptions::default(), &mut e);
-    print!("{}", report::to_text(&tour, &e));
+    super::out(&report::to_text(&tour, &e));
     if let Some(fp) = front {
         let mut s = String::from("total_tof_days,objective\n");
         for (a, b) in &r.front {

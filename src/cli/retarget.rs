@@ -22,10 +22,10 @@ pub fn run(
     let k = stop.checked_sub(1).ok_or("--stop counts from 1")?;
     let r = retarget::retarget(&d, k, move_epoch).map_err(|e| e.to_string())?;
     files::save(&r.design, out).map_err(|e| e.to_string())?;
-    println!("miss distance now {:.1} km", r.miss_km);
+    super::out(&format!("miss distance now {:.1} km", r.miss_km));
     let tour = prepare(out, &r.design)?;
     let mut e = Evaluation::default();
     evaluate(&tour, &EvalOptions::default(), &mut e);
-    print!("{}", report::to_text(&tour, &e));
+    super::out(&report::to_text(&tour, &e));
     Ok(())
 }

@@ -113,16 +113,16 @@ pub fn run(a: Args) -> CliResult {
     for q in [Quantity::C3, Quantity::TotalDv] {
         if let Some((i, j, v)) = map.minimum(q) {
             let (x, y) = map.epochs(i, j);
-            println!(
+            super::out(&format!(
                 "minimum {}: {v:.3} departing {} arriving {} ({:.0} days)",
                 q.label(),
                 x.to_date_utc(),
                 y.to_date_utc(),
                 y.days() - x.days()
-            );
+            ));
         }
     }
-    println!("{} × {} cells in {el:.3} s", spec.nx, spec.ny);
+    super::out(&format!("{} × {} cells in {el:.3} s", spec.nx, spec.ny));
     if let Some(p) = a.csv {
         write(&p, &map.to_csv())?;
     }

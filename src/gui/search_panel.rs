@@ -138,7 +138,10 @@ impl SearchPanel {
                 .on_hover_text("One undo step")
                 .clicked()
             {
-                out.push(Action::Edit(Edit::SetEpochs(res.epochs.clone())));
+                out.push(Action::Edit(Edit::ApplySchedule {
+                    epochs: res.epochs.clone(),
+                    legs: res.legs.clone(),
+                }));
             }
             if !res.front.is_empty() {
                 ui.label(format!(
@@ -251,6 +254,7 @@ impl SearchPanel {
                             objective: self.objective,
                             evals_per_sequence: self.evals_per_sequence,
                             seed: self.seed,
+                            shard: None,
                         })));
                     }
                     _ => {

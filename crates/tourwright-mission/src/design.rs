@@ -280,7 +280,7 @@ pub struct TofBounds {
 }
 
 /// Search bounds: launch window and per-leg time of flight.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, Default)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct SearchBounds {
     /// Earliest launch.
@@ -298,6 +298,31 @@ pub struct SearchBounds {
     /// The objective.
     #[serde(default)]
     pub objective: Objective,
+    /// Search the revolution count (and branch) of legs that return to the body they left;
+    /// `false` keeps every leg as the design sets it (e.g. a benchmark's zero-revolution legs).
+    #[serde(default = "yes", skip_serializing_if = "is_yes")]
+    pub resonant_revolutions: bool,
+}
+
+fn yes() -> bool {
+    true
+}
+
+fn is_yes(b: &bool) -> bool {
+    *b
+}
+
+impl Default for SearchBounds {
+    fn default() -> Self {
+        SearchBounds {
+            launch_earliest: None,
+            launch_latest: None,
+            leg_tof: Vec::new(),
+            max_total_tof_days: None,
+            objective: Objective::default(),
+            resonant_revolutions: true,
+        }
+    }
 }
 
 impl MissionDesign {

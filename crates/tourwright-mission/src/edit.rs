@@ -38,8 +38,15 @@ pub enum Edit {
         /// Days (any sign).
         days: f64,
     },
-    /// Set every stop's epoch at once (an optimiser result).
+    /// Set every stop's epoch at once.
     SetEpochs(Vec<Epoch>),
+    /// Apply a search result: every stop's epoch and every leg's Lambert options.
+    ApplySchedule {
+        /// One epoch per stop.
+        epochs: Vec<Epoch>,
+        /// One set of options per leg.
+        legs: Vec<LegOptions>,
+    },
     /// Set both ends of a leg (a window-map click).
     SetLegEpochs {
         /// Leg index.
@@ -125,7 +132,7 @@ impl Edit {
             Edit::SetNotes(_) => "notes",
             Edit::SetBody { .. } => "change body",
             Edit::SetEpoch { .. } | Edit::ShiftEpoch { .. } => "change date",
-            Edit::SetEpochs(_) => "apply dates",
+            Edit::SetEpochs(_) | Edit::ApplySchedule { .. } => "apply dates",
             Edit::SetLegEpochs { .. } => "set leg dates",
             Edit::InsertStopAfter(_) => "insert stop",
             Edit::RemoveStop(_) => "remove stop",
@@ -173,6 +180,20 @@ impl Edit {
                 }
                 for (s, e) in d.stops.iter_mut().zip(v) {
                     s.epoch = e;
+                }
+            }
+            Edit::ApplySchedule { epochs, legs } => {
+                if epochs.len() != n || legs.len() + 1 != n {
+                    return Err(EditError::Epochs(
+                        "the stops changed since those dates were computed",
+                    ));
+                }
+                for (s, e) in d.stops.iter_mut().zip(epochs) {
+                    s.epoch = e;
+                }
+                d.legs = legs;
+                while d.legs.last() == Some(&LegOptions::default()) {
+                    d.legs.pop();
                 }
             }
             Edit::SetLegEpochs {

@@ -7,8 +7,10 @@
 //! √((V_A + u)² + 2μ☉(1/r_B − 1/r_A)) + V_B (circular mean orbits). Starting from the launch v∞
 //! that the C3 limit allows, a sequence is dropped when some leg needs more v∞ than that bound
 //! (plus 1 km/s for eccentric and inclined orbits and 1 km/s of powered swing-by per stop), or when
-//! the sum of Hohmann times exceeds twice the TOF limit. Repeated bodies (V-V, E-E) are resonant
-//! legs of one revolution.
+//! even flying every leg's radial distance at that bounding speed takes longer than the TOF limit
+//! (a lower bound on any leg's time; a Hohmann time would wrongly drop fast tours such as a
+//! 1977 Jupiter-Saturn passage). Repeated bodies (V-V, E-E) are resonant legs whose revolutions
+//! the optimiser chooses.
 
 use std::sync::Arc;
 
@@ -44,10 +46,13 @@ pub struct ExploreSpec {
     pub evals_per_sequence: u64,
     /// Seed.
     pub seed: u64,
+    /// Explore only share `k` of `n` (0-based `k`): the sequences whose place in the enumeration
+    /// is `k` modulo `n`. Shards of one survey together cover it exactly once.
+    pub shard: Option<(usize, usize)>,
 }
 
 /// One ranked sequence.
-#[derive(Clone, Debug)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Candidate {
     /// The sequence, e.g. `E-V-E-J`.
     pub label: String,
@@ -70,12 +75,12 @@ pub struct Candidate {
 }
 
 /// Result of an exploration.
-#[derive(Clone, Debug, Default)]
+#[derive(Clone, Debug, Default, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Exploration {
     /// Sequences enumerated.
     pub enumerated: usize,
     /// Sequences pruned, with the reason.
-    pub pruned: Vec<(String, &'static str)>,
+    pub pruned: Vec<(String, String)>,
     /// Optimised sequences, best first.
     pub ranked: Vec<Candidate>,
 }
@@ -88,19 +93,21 @@ fn mean_a(p: Planet) -> f64 {
     MeanElements::of(p).a_km()
 }
 
-/// Leg TOF bounds (days) between two bodies: 0.4 to 2.2 Hohmann times; resonant same-body legs
-/// 1.02 to 2.6 orbital periods.
+/// Leg TOF bounds (days) between two bodies: 0.15 to 2.2 Hohmann times (fast hyperbolic legs
+/// between the giants take a fifth of a Hohmann time); legs that return to the
+/// body they left 0.6 to 3.1 of its periods (the optimiser chooses their revolutions: the 1:1, 2:1
+/// and 3:1 returns and the arcs between them).
 pub fn leg_bounds(a: Planet, b: Planet) -> TofBounds {
     if a == b {
         let p = MeanElements::of(a).period_days();
         TofBounds {
-            min_days: 1.02 * p,
-            max_days: 2.6 * p,
+            min_days: 0.6 * p,
+            max_days: 3.1 * p,
         }
     } else {
         let h = hohmann(mean_a(a), mean_a(b)).tof_days;
         TofBounds {
-            min_days: (0.4 * h).max(20.0),
+            min_days: (0.15 * h).max(20.0),
             max_days: 2.2 * h,
         }
     }
@@ -115,6 +122,7 @@ pub fn prune_reason(
     use tourwright_astro::constants::MU_SUN;
     let h = |a: Planet, b: Planet| hohmann(mean_a(a), mean_a(b));
     let mut u = max_launch_vinf;
+    let mut fastest_days = 0.0;
     for (k, w) in seq.windows(2).enumerate() {
         let (a, b) = (w[0], w[1]);
         if a == b {
@@ -129,20 +137,12 @@ pub fn prune_reason(
         }
         let (ra, rb) = (mean_a(a), mean_a(b));
         let (va, vb) = ((MU_SUN / ra).sqrt(), (MU_SUN / rb).sqrt());
-        let s2 = (va + u).powi(2) + 2.0 * MU_SUN * (1.0 / rb - 1.0 / ra);
+        let vmax = va + u;
+        fastest_days += (rb - ra).abs() / vmax / 86_400.0;
+        let s2 = vmax.powi(2) + 2.0 * MU_SUN * (1.0 / rb - 1.0 / ra);
         u = s2.max(0.0).sqrt() + vb + 1.0;
     }
-    let total: f64 = seq
-        .windows(2)
-        .map(|w| {
-            if w[0] == w[1] {
-                MeanElements::of(w[0]).period_days()
-            } else {
-                h(w[0], w[1]).tof_days
-            }
-        })
-        .sum();
-    if total > 2.0 * max_tof_days {
+    if fastest_days > max_tof_days {
         return Some("too slow for the TOF limit");
     }
     None
@@ -191,10 +191,7 @@ pub fn design_for(seq: &[Planet], spec: &ExploreSpec, template: &MissionDesign) 
             let b = leg_bounds(seq[k - 1], *p);
             t = t.plus_days(0.5 * (b.min_days + b.max_days));
             bounds.push(b);
-            d.legs.push(LegOptions {
-                revolutions: u32::from(seq[k - 1] == *p),
-                ..Default::default()
-            });
+            d.legs.push(LegOptions::default());
         }
         d.stops.push(Stop {
             body: p.name().into(),
@@ -208,6 +205,7 @@ pub fn design_for(seq: &[Planet], spec: &ExploreSpec, template: &MissionDesign) 
         leg_tof: bounds,
         max_total_tof_days: Some(spec.max_tof_years * 365.25),
         objective: spec.objective,
+        resonant_revolutions: true,
     };
     d
 }
@@ -222,14 +220,17 @@ pub fn explore(
     let max_vinf = template.launch.max_c3_km2_s2.map(f64::sqrt).unwrap_or(10.0);
     let max_tof = spec.max_tof_years * 365.25;
     let seqs = enumerate(spec);
-    let mut ex = Exploration {
-        enumerated: seqs.len(),
-        ..Default::default()
-    };
+    let mut ex = Exploration::default();
     let mut survivors = Vec::new();
-    for s in seqs {
+    for (i, s) in seqs.into_iter().enumerate() {
+        if let Some((k, n)) = spec.shard {
+            if i % n.max(1) != k {
+                continue;
+            }
+        }
+        ex.enumerated += 1;
         match prune_reason(&s, max_vinf, max_tof) {
-            Some(r) => ex.pruned.push((label(&s), r)),
+            Some(r) => ex.pruned.push((label(&s), r.to_string())),
             None => survivors.push(s),
         }
     }
@@ -247,7 +248,7 @@ pub fn explore(
         let mut d = design_for(s, spec, template);
         let Ok(p) = Problem::from_design(&d) else {
             ex.pruned
-                .push((label(s), "the sequence cannot be prepared"));
+                .push((label(s), "the sequence cannot be prepared".to_string()));
             continue;
         };
         let inner = progress.child();
@@ -268,6 +269,7 @@ pub fn explore(
         for (stop, e) in d.stops.iter_mut().zip(&r.epochs) {
             stop.epoch = *e;
         }
+        d.legs = r.legs.clone();
         let (_, e) = evaluate_design(&d);
         progress.offer_best(r.value);
         ex.ranked.push(Candidate {
@@ -283,12 +285,68 @@ pub fn explore(
         });
         progress.add(1);
     }
-    ex.ranked.sort_by(|a, b| {
-        b.feasible
-            .cmp(&a.feasible)
-            .then(a.value.total_cmp(&b.value))
-    });
+    ex.rank();
     ex
+}
+
+impl Exploration {
+    /// Order the candidates: those that meet every limit first, then by objective, then by label
+    /// (so that equal values rank the same way on every machine).
+    pub fn rank(&mut self) {
+        self.ranked.sort_by(|a, b| {
+            b.feasible
+                .cmp(&a.feasible)
+                .then(a.value.total_cmp(&b.value))
+                .then(a.label.cmp(&b.label))
+        });
+        self.pruned.sort();
+    }
+
+    /// The exploration as JSON lines: one line for the counts and pruned sequences, then one
+    /// line per candidate. What `--shard` writes and `--merge` reads.
+    pub fn to_json_lines(&self) -> String {
+        let mut out = serde_json::json!({
+            "enumerated": self.enumerated,
+            "pruned": self.pruned,
+        })
+        .to_string();
+        out.push('\n');
+        for c in &self.ranked {
+            if let Ok(line) = serde_json::to_string(c) {
+                out.push_str(&line);
+                out.push('\n');
+            }
+        }
+        out
+    }
+
+    /// Merge shards' JSON lines into one ranked exploration. `name` names the text in errors.
+    pub fn merge_json_lines<'a>(
+        parts: impl IntoIterator<Item = (&'a str, &'a str)>,
+    ) -> Result<Exploration, String> {
+        let mut ex = Exploration::default();
+        for (name, text) in parts {
+            for (i, line) in text.lines().enumerate() {
+                if line.trim().is_empty() {
+                    continue;
+                }
+                let v: serde_json::Value =
+                    serde_json::from_str(line).map_err(|e| format!("{name}:{}: {e}", i + 1))?;
+                if v.get("enumerated").is_some() {
+                    ex.enumerated += v["enumerated"].as_u64().unwrap_or(0) as usize;
+                    let pruned: Vec<(String, String)> = serde_json::from_value(v["pruned"].clone())
+                        .map_err(|e| format!("{name}:{}: {e}", i + 1))?;
+                    ex.pruned.extend(pruned);
+                } else {
+                    let c: Candidate =
+                        serde_json::from_value(v).map_err(|e| format!("{name}:{}: {e}", i + 1))?;
+                    ex.ranked.push(c);
+                }
+            }
+        }
+        ex.rank();
+        Ok(ex)
+    }
 }
 
 fn spec_tof_ok(e: &tourwright_mission::Evaluation, max_tof: f64) -> bool {

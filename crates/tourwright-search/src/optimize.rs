@@ -6,8 +6,9 @@
 
 use rayon::prelude::*;
 
+use tourwright_astro::lambert::Branch;
 use tourwright_astro::time::{Epoch, Tdb};
-use tourwright_mission::design::{MissionDesign, SwingbyMode};
+use tourwright_mission::design::{LegOptions, MissionDesign, SwingbyMode};
 use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate};
 use tourwright_mission::{Objective, PreparedTour};
 
@@ -93,6 +94,24 @@ pub struct Problem {
     pub constraints: Vec<Constraint>,
     /// Which variables are integer choices (held fixed by the local descent).
     pub integer: Vec<bool>,
+    /// (leg, variable index) of each revolution choice.
+    pub rev_vars: Vec<(usize, usize)>,
+}
+
+/// Revolutions and branch of a revolution-choice variable's value.
+pub fn rev_choice(v: f64) -> (u32, Branch) {
+    let c = if v.is_finite() {
+        v.max(0.0).floor() as u32
+    } else {
+        0
+    };
+    if c == 0 {
+        (0, Branch::Left)
+    } else if c % 2 == 1 {
+        (c.div_ceil(2), Branch::Left)
+    } else {
+        (c / 2, Branch::Right)
+    }
 }
 
 impl Problem {
@@ -126,7 +145,7 @@ impl Problem {
             lo.push(t.min_days);
             hi.push(t.max_days);
         }
-        let resonant_periods = tour
+        let resonant_periods: Vec<Option<f64>> = tour
             .stops
             .windows(2)
             .map(|w| {
@@ -136,6 +155,24 @@ impl Problem {
                 })
             })
             .collect();
+        // Revolution choices of legs that return to the body they left: 0 (zero revolutions),
+        // then N revolutions on the left and right branch, up to what the longest TOF allows.
+        let mut rev_vars = Vec::new();
+        let mut integer = vec![false; lo.len()];
+        if d.search.resonant_revolutions {
+            for (k, per) in resonant_periods.iter().enumerate() {
+                if let Some(per) = per {
+                    let nmax = ((hi[k + 1] / per).floor() as usize).min(3);
+                    if nmax >= 1 {
+                        let choices = 1 + 2 * nmax;
+                        rev_vars.push((k, lo.len()));
+                        lo.push(0.0);
+                        hi.push(choices as f64 - 1e-9);
+                        integer.push(true);
+                    }
+                }
+            }
+        }
         let mut constraints = Vec::new();
         for (k, st) in tour.stops.iter().enumerate() {
             if st.kind == tourwright_mission::evaluate::StopKind::SwingBy && st.body.data.mu > 0.0 {
@@ -164,7 +201,8 @@ impl Problem {
             max_total_tof_days: d.search.max_total_tof_days,
             resonant_periods,
             constraints,
-            integer: vec![false; d.stops.len()],
+            integer,
+            rev_vars,
         })
     }
 
@@ -173,10 +211,16 @@ impl Problem {
         self.lo.len()
     }
 
-    /// Write the epochs of `x` into `tour`.
+    /// Write the epochs (and revolution choices) of `x` into `tour`.
     #[inline]
     pub fn apply(&self, x: &[f64], tour: &mut PreparedTour) {
-        tour.set_schedule(Tdb::from_mjd2000(x[0]), &x[1..]);
+        let legs = tour.legs.len();
+        tour.set_schedule(Tdb::from_mjd2000(x[0]), &x[1..=legs]);
+        for &(k, i) in &self.rev_vars {
+            let (revs, branch) = rev_choice(x[i]);
+            tour.legs[k].revs = revs;
+            tour.legs[k].branch = branch;
+        }
     }
 
     /// The stops' epochs at `x`, each in the scale its design writes it in.
@@ -189,11 +233,34 @@ impl Problem {
             .collect()
     }
 
-    /// The decision vector of a tour's current epochs.
+    /// Every leg's Lambert options at `x`.
+    pub fn legs_at(&self, x: &[f64]) -> Vec<LegOptions> {
+        let mut t = self.tour.clone();
+        self.apply(x, &mut t);
+        t.legs
+            .iter()
+            .map(|l| LegOptions {
+                revolutions: l.revs,
+                branch: l.branch,
+                direction: l.direction,
+            })
+            .collect()
+    }
+
+    /// The decision vector of a tour's current epochs and revolution choices.
     pub fn vector_of(&self, tour: &PreparedTour) -> Vec<f64> {
         let mut x = vec![tour.stops[0].t.mjd2000()];
         for k in 1..tour.stops.len() {
             x.push(tour.stops[k].t.days() - tour.stops[k - 1].t.days());
+        }
+        for &(k, i) in &self.rev_vars {
+            let l = &tour.legs[k];
+            let c = match (l.revs, l.branch) {
+                (0, _) => 0,
+                (n, Branch::Left) => 2 * n - 1,
+                (n, Branch::Right) => 2 * n,
+            };
+            x.push((c as f64 + 0.5).min(self.hi[i]));
         }
         x
     }
@@ -394,6 +461,8 @@ pub struct OptimizeResult {
     pub value: f64,
     /// The stops' epochs at the optimum (each in its design's time scale).
     pub epochs: Vec<Epoch>,
+    /// Every leg's Lambert options at the optimum (revolution choices included).
+    pub legs: Vec<LegOptions>,
     /// Objective evaluations used.
     pub evaluations: u64,
     /// Trade-off front: (total TOF days, score) pairs, none dominated, sorted by TOF.
@@ -677,8 +746,16 @@ impl Chain {
             self.fresh_start(p, pool)
         } else {
             for i in 0..p.dim() {
-                let r = (2.0 * self.rng.uniform() - 1.0) * hs.radius * (p.hi[i] - p.lo[i]);
-                self.trial[i] = clamp_safe(self.x[i] + r, p.lo[i], p.hi[i]);
+                self.trial[i] = if p.integer[i] {
+                    if self.rng.uniform() < 0.25 {
+                        p.lo[i] + self.rng.uniform() * (p.hi[i] - p.lo[i])
+                    } else {
+                        self.x[i]
+                    }
+                } else {
+                    let r = (2.0 * self.rng.uniform() - 1.0) * hs.radius * (p.hi[i] - p.lo[i]);
+                    clamp_safe(self.x[i] + r, p.lo[i], p.hi[i])
+                };
             }
             self.trial.clone()
         };
@@ -880,6 +957,7 @@ pub fn optimize(
     front.sort_by(|a, b| a.0.total_cmp(&b.0));
     OptimizeResult {
         epochs: p.epochs_at(&x),
+        legs: p.legs_at(&x),
         x,
         value,
         evaluations: evals,

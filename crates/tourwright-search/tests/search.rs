@@ -177,6 +177,7 @@ fn explorer_ranks_a_jupiter_assist_ahead_of_a_mercury_detour_to_saturn() {
         objective: Objective::TotalDvWithLaunchVinf,
         evals_per_sequence: 12_000,
         seed: 3,
+        shard: None,
     };
     let ex = explore::explore(&spec, &MissionDesign::new_blank(), &Progress::new());
     assert_eq!(ex.enumerated, 3);
@@ -291,6 +292,7 @@ fn cancelling_the_explorer_stops_its_inner_optimiser() {
         objective: Objective::TotalDvWithLaunchVinf,
         evals_per_sequence: 50_000_000,
         seed: 1,
+        shard: None,
     };
     let p = Progress::new();
     let p2 = p.clone();
@@ -329,4 +331,115 @@ fn cancelling_the_direct_search_stops_its_grid_and_polish() {
     // already under way; the polish does not run.
     assert!(after <= 64, "{after} evaluations after cancel");
     assert!(r.is_none());
+}
+
+fn evej_spec(evals: u64) -> ExploreSpec {
+    // The case that ranked a deferred launch first (issue 9): E to J, 2030-2031, via V, E, M.
+    ExploreSpec {
+        from: Planet::Earth,
+        to: Planet::Jupiter,
+        launch: (
+            Epoch::parse("2030-01-01").unwrap(),
+            Epoch::parse("2031-12-31").unwrap(),
+        ),
+        via: vec![Planet::Venus, Planet::Earth, Planet::Mars],
+        max_swingbys: 2,
+        max_tof_years: 7.0,
+        objective: Objective::TotalDvWithLaunchVinf,
+        evals_per_sequence: evals,
+        seed: 1,
+        shard: None,
+    }
+}
+
+#[test]
+fn explorer_never_ranks_a_deferred_launch_as_a_tour() {
+    let ex = explore::explore(
+        &evej_spec(6_000),
+        &MissionDesign::new_blank(),
+        &Progress::new(),
+    );
+    let first = &ex.ranked[0];
+    assert!(first.feasible, "{first:?}");
+    // Not the zero-energy launch that meets Earth again at v∞ ≈ 0: a real launch, and every
+    // swing-by of every tour marked feasible at least the default minimum v∞ (1 km/s).
+    assert!(first.c3 > 1.0, "{} C3 {}", first.label, first.c3);
+    for c in ex.ranked.iter().filter(|c| c.feasible) {
+        let e = tourwright_mission::evaluate::evaluate_design(&c.design).1;
+        for s in &e.stops[1..e.stops.len() - 1] {
+            assert!(
+                s.vinf_in.norm() >= 1.0 - 1e-6,
+                "{}: v∞ {}",
+                c.label,
+                s.vinf_in.norm()
+            );
+        }
+    }
+}
+
+#[test]
+fn explorer_ranks_the_voyager_sequence_first_in_its_1977_window() {
+    // Voyager 1 and 2 left Earth in August-September 1977 for Jupiter and Saturn (launches on
+    // 1977-08-20 and 1977-09-05, from memory). In that window a Jupiter swing-by is the way to
+    // Saturn within 4.5 years: it must rank ahead of flying direct or by Mars or Venus.
+    let spec = ExploreSpec {
+        from: Planet::Earth,
+        to: Planet::Saturn,
+        launch: (
+            Epoch::parse("1977-08-01").unwrap(),
+            Epoch::parse("1977-09-30").unwrap(),
+        ),
+        via: vec![Planet::Jupiter, Planet::Mars, Planet::Venus],
+        max_swingbys: 1,
+        max_tof_years: 4.5,
+        objective: Objective::TotalDvWithLaunchVinf,
+        evals_per_sequence: 8_000,
+        seed: 1,
+        shard: None,
+    };
+    let ex = explore::explore(&spec, &MissionDesign::new_blank(), &Progress::new());
+    let labels: Vec<&str> = ex.ranked.iter().map(|c| c.label.as_str()).collect();
+    assert_eq!(labels[0], "E-J-S", "{labels:?}");
+    let best = &ex.ranked[0];
+    assert!(best.feasible);
+    // The launch falls in the window the Voyagers used.
+    let launch = best.launch.to_date_utc();
+    assert!(launch.as_str() >= "1977-08-01" && launch.as_str() <= "1977-09-30");
+    for worse in ["E-S", "E-M-S", "E-V-S"] {
+        let k = labels.iter().position(|l| *l == worse).unwrap();
+        assert!(ex.ranked[k].value > best.value + 1.0, "{worse}");
+    }
+}
+
+#[test]
+fn shards_merged_equal_the_whole_survey() {
+    let whole = explore::explore(
+        &evej_spec(2_000),
+        &MissionDesign::new_blank(),
+        &Progress::new(),
+    );
+    let n = 3;
+    let lines: Vec<(String, String)> = (0..n)
+        .map(|k| {
+            let spec = ExploreSpec {
+                shard: Some((k, n)),
+                ..evej_spec(2_000)
+            };
+            let ex = explore::explore(&spec, &MissionDesign::new_blank(), &Progress::new());
+            (format!("shard {}", k + 1), ex.to_json_lines())
+        })
+        .collect();
+    let merged =
+        explore::Exploration::merge_json_lines(lines.iter().map(|(a, b)| (a.as_str(), b.as_str())))
+            .unwrap();
+    assert_eq!(merged.enumerated, whole.enumerated);
+    assert_eq!(merged.pruned, whole.pruned);
+    let key = |e: &explore::Exploration| -> Vec<(String, u64)> {
+        e.ranked
+            .iter()
+            .map(|c| (c.label.clone(), c.value.to_bits()))
+            .collect()
+    };
+    assert_eq!(key(&merged), key(&whole));
+    assert_eq!(merged.ranked, whole.ranked);
 }
