@@ -189,3 +189,105 @@ fn window_optimize_and_explore_commands() {
     );
     assert!(String::from_utf8(out.stdout).unwrap().contains("E-M"));
 }
+
+/// Run the binary, insist on success, return stdout.
+fn run_ok(cmd: &mut Command) -> String {
+    let out = cmd.output().unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    String::from_utf8(out.stdout).unwrap()
+}
+
+#[test]
+fn sharded_survey_merges_to_the_whole_ranking() {
+    let dir = tempfile::tempdir().unwrap();
+    let survey = [
+        "explore",
+        "--from",
+        "E",
+        "--to",
+        "M",
+        "--launch",
+        "2033-01-01..2033-12-31",
+        "--via",
+        "V,E",
+        "--max-swingbys",
+        "2",
+        "--max-tof-years",
+        "3",
+        "--evals",
+        "2000",
+    ];
+    let whole = run_ok(bin().args(survey));
+    let shards = dir.path().join("shards");
+    std::fs::create_dir(&shards).unwrap();
+    let mut lines = 0;
+    for k in 1..=3 {
+        let file = shards.join(format!("s{k}.jsonl"));
+        run_ok(
+            bin()
+                .args(survey)
+                .args(["--shard", &format!("{k}/3"), "--jsonl"])
+                .arg(&file),
+        );
+        lines += std::fs::read_to_string(&file).unwrap().lines().count();
+    }
+    // E-M, E-V-M, E-E-M, and the four 2-swing-by sequences over V and E: 7 candidates split three
+    // ways, plus one header line (counts and pruned sequences) per shard.
+    assert_eq!(lines, 7 + 3);
+    let merged = run_ok(
+        bin()
+            .args(["explore", "--merge"])
+            .arg(&shards)
+            .arg("--out")
+            .arg(dir.path().join("ranked")),
+    );
+    assert_eq!(merged, whole, "merged shards rank as the whole survey");
+    assert_eq!(
+        std::fs::read_dir(dir.path().join("ranked"))
+            .unwrap()
+            .count(),
+        7
+    );
+    // Bad shard specifications are refused with the reason.
+    for bad in ["0/3", "4/3", "1/0", "x/3"] {
+        let out = bin().args(survey).args(["--shard", bad]).output().unwrap();
+        assert!(!out.status.success(), "--shard {bad} must fail");
+        assert!(String::from_utf8_lossy(&out.stderr).contains("shard"));
+    }
+}
+
+#[test]
+fn ephemeris_model_is_chosen_per_command() {
+    let file = Path::new(env!("CARGO_MANIFEST_DIR")).join("benches/mga/cassini1.tour.ron");
+    let launch_vinf = |model: &str| {
+        let text = run_ok(
+            bin()
+                .arg("eval")
+                .arg(&file)
+                .args(["--json", "--ephemeris", model]),
+        );
+        let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+        v["launch"]["vinf_km_s"].as_f64().unwrap()
+    };
+    let mga = launch_vinf("mga-benchmark");
+    let mean = launch_vinf("mean-elements");
+    assert!(mga.is_finite() && mean.is_finite());
+    assert!(
+        (mga - mean).abs() > 1e-3,
+        "the two models give different states"
+    );
+    let help = run_ok(bin().args(["optimize", "--help"]));
+    assert!(help.contains("mean-elements") && help.contains("mga-benchmark"));
+    let out = bin()
+        .arg("eval")
+        .arg(&file)
+        .args(["--ephemeris", "de999"])
+        .output()
+        .unwrap();
+    assert!(!out.status.success());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("mga-benchmark"));
+}

@@ -539,3 +539,25 @@ fn sun_view_orbits_are_not_rebuilt_while_a_swingby_is_dragged() {
     }
     assert_eq!(h.state().views.sun.orbit_builds, builds);
 }
+
+#[test]
+fn ephemeris_model_is_picked_in_the_tour_panel_and_shown_in_the_status_bar() {
+    let mut h = harness(0);
+    let vinf_before = h.state().eval.launch.c3;
+    h.get_by_label("ephemeris: JPL mean elements 1800-2050");
+    h.get_by_role_and_label(Role::ComboBox, "Ephemeris").click();
+    h.run_steps(2);
+    h.get_by_label("MGA benchmark model").click();
+    h.run_steps(3);
+    assert_eq!(
+        h.state().design().ephemeris,
+        tourwright::mission::design::EphemerisChoice::MgaBenchmark
+    );
+    h.get_by_label("ephemeris: MGA benchmark model");
+    let vinf_after = h.state().eval.launch.c3;
+    assert!(
+        (vinf_after - vinf_before).abs() > 1e-4,
+        "the evaluation follows the model: {vinf_before} -> {vinf_after}"
+    );
+    undo_redo_both_ways(&mut h, "ephemeris model");
+}

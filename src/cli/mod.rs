@@ -211,10 +211,6 @@ pub enum Command {
         /// Launch body.
         #[arg(long, required_unless_present = "merge")]
         from: Option<String>,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: mean-elements.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
         /// Target body.
         #[arg(long, required_unless_present = "merge")]
         to: Option<String>,
@@ -242,6 +238,10 @@ pub enum Command {
         /// Seed.
         #[arg(long, default_value_t = 1)]
         seed: u64,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
+        /// (the MGA benchmark set's analytic model); default: mean-elements.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
         /// Explore only share K of N (1-based K), e.g. 3/16: for array jobs of a scheduler.
         /// Writes JSON lines to --jsonl (or to standard output).
         #[arg(long)]
