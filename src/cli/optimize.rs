@@ -45,11 +45,8 @@ pub fn run(
     };
     let t = std::time::Instant::now();
     let r = optimize::optimize(&p, &opts, &Progress::new(), front.is_some());
-    tourwright_mission::Edit::ApplySchedule {
-        epochs: r.epochs.clone(),
-        legs: r.legs.clone(),
-    }
-    .apply(&mut d)
+    tourwright_mission::Edit::ApplySchedule(r.schedule.clone())
+        .apply(&mut d)
     .map_err(|e| e.to_string())?;
     super::out(&format!(
         "objective {}: {:.4} -> {:.4} after {} evaluations in {:.2} s",

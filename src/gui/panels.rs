@@ -6,8 +6,8 @@ use eframe::egui::{self, DragValue, RichText};
 use tourwright_astro::lambert::{Branch, Direction, MAX_REVS};
 use tourwright_astro::time::Epoch;
 use tourwright_mission::design::{
-    ArrivalGoal, EphemerisChoice, LaunchLimits, LaunchVehicle, LegOptions, PerformancePoint,
-    SwingbyMode,
+    ArrivalGoal, Dsm, DsmTime, EphemerisChoice, LaunchLimits, LaunchVehicle, LaunchVinf,
+    LegOptions, PerformancePoint, SwingbyMode,
 };
 use tourwright_mission::evaluate::StopKind;
 use tourwright_mission::report::{self, EVENT_COLUMNS, LEDGER_VIEW_COLUMNS};
@@ -316,10 +316,16 @@ fn swingby_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions
     ui.horizontal(|ui| {
         ui.label("Mode").on_hover_text(
             "Targeted: the dates fix both legs (powered if needed). Shaped: you set altitude and \
-             aim; the next leg is ballistic.",
+             aim; the next leg is ballistic, or coasts to its deep-space manoeuvre.",
         );
         let shaped = matches!(stop.swingby.mode, SwingbyMode::Shaped { .. });
-        if ui.selectable_label(!shaped, "targeted").clicked() && shaped {
+        let dsm_next = vc.design.leg(k).dsm.is_some();
+        let t = ui
+            .add_enabled(!dsm_next, egui::Button::selectable(!shaped, "targeted"))
+            .on_disabled_hover_text(
+                "The next leg has a deep-space manoeuvre, which starts from a shaped swing-by",
+            );
+        if t.clicked() && shaped {
             out.push(Action::Edit(Edit::SetSwingbyMode {
                 stop: k,
                 mode: SwingbyMode::Targeted,
@@ -359,7 +365,17 @@ fn swingby_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions
                 }));
             }
         });
-        shared::retarget_row(ui, vc, k, out);
+        if vc.design.leg(k).dsm.is_none() {
+            shared::retarget_row(ui, vc, k, out);
+        } else {
+            ui.label(
+                RichText::new(format!(
+                    "the manoeuvre on leg {} meets the next body",
+                    k + 1
+                ))
+                .weak(),
+            );
+        }
     }
 }
 
@@ -374,12 +390,27 @@ fn leg_row(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions) {
     let color = style::leg_color(k);
     let ballistic = matches!(vc.design.stops[k].swingby.mode, SwingbyMode::Shaped { .. })
         && k > 0
-        && k + 1 < vc.design.stops.len();
+        && k + 1 < vc.design.stops.len()
+        && leg.dsm.is_none();
     ui.horizontal(|ui| {
         ui.label(RichText::new("|").color(color).strong());
         let leg_lab = ui.label(
             RichText::new(format!("leg {}: {}", k + 1, style::fixed(tof, 0) + " d")).color(color),
         );
+        if leg.dsm.is_none()
+            && ui
+                .small_button("+ DSM")
+                .on_hover_text(
+                    "Add a deep-space manoeuvre on this leg: the leg coasts from its start, makes \
+                     one impulse and flies a Lambert arc to the next stop",
+                )
+                .clicked()
+        {
+            match Edit::add_dsm(vc.design, vc.eval, k) {
+                Ok(e) => out.push(Action::Edit(e)),
+                Err(e) => out.push(Action::Status(e.to_string(), true)),
+            }
+        }
         if ballistic {
             ui.label("ballistic");
             return;
@@ -419,10 +450,153 @@ fn leg_row(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions) {
                     } else {
                         Direction::Prograde
                     },
+                    dsm: leg.dsm,
                 },
             }));
         }
     });
+    if let Some(m) = leg.dsm {
+        dsm_rows(ui, vc, k, m, tof, out);
+    }
+}
+
+/// A leg's deep-space manoeuvre: where (fraction, or day of the leg for a dated one), its Δv, the
+/// launch v∞ it starts from on the first leg, and removal.
+fn dsm_rows(
+    ui: &mut egui::Ui,
+    vc: &ViewCtx<'_>,
+    k: usize,
+    m: Dsm,
+    tof_days: f64,
+    out: &mut Actions,
+) {
+    let color = style::leg_color(k);
+    let res = vc.eval.legs.get(k).and_then(|l| l.dsm);
+    ui.horizontal(|ui| {
+        ui.label(RichText::new("|").color(color).strong());
+        ui.label(RichText::new("DSM").color(color).strong())
+            .on_hover_text("Deep-space manoeuvre: one impulse on this leg");
+        let t0 = vc.design.stops[k].epoch;
+        let mut next = m;
+        let mut changed = false;
+        match m.at {
+            DsmTime::Fraction(f) => {
+                let mut pct = f * 100.0;
+                let r = style::labelled(
+                    ui,
+                    "at",
+                    DragValue::new(&mut pct)
+                        .speed(0.2)
+                        .range(0.1..=99.9)
+                        .max_decimals(1)
+                        .suffix(" % of the leg"),
+                );
+                if r.changed() {
+                    next.at = DsmTime::Fraction(pct / 100.0);
+                    changed = true;
+                }
+            }
+            DsmTime::Date(e) => {
+                let mut day = e.days() - t0.days();
+                let r = style::labelled(
+                    ui,
+                    "on day",
+                    DragValue::new(&mut day)
+                        .speed(0.5)
+                        .range(0.01..=(tof_days - 0.01).max(0.02))
+                        .max_decimals(2),
+                );
+                if r.changed() {
+                    next.at = DsmTime::Date(t0.plus_days(day));
+                    changed = true;
+                }
+            }
+        }
+        let dated = matches!(m.at, DsmTime::Date(_));
+        let mut by_date = dated;
+        if ui
+            .checkbox(&mut by_date, "dated")
+            .on_hover_text("Fix the manoeuvre to a date instead of a fraction of the leg")
+            .changed()
+        {
+            let f = res.map(|d| d.fraction).unwrap_or(0.5);
+            next.at = if by_date {
+                DsmTime::Date(t0.plus_days(f * tof_days))
+            } else {
+                DsmTime::Fraction(f.clamp(1e-3, 1.0 - 1e-3))
+            };
+            out.push(Action::Edit(Edit::SetDsm {
+                leg: k,
+                dsm: Some(next),
+            }));
+        }
+        if changed {
+            out.push(Action::EditLive(Edit::SetDsm {
+                leg: k,
+                dsm: Some(next),
+            }));
+        }
+        if let Some(d) = res {
+            ui.label(format!(
+                "Δv {} km/s at {} AU",
+                style::fixed(d.dv_km_s, 3),
+                style::fixed(d.sun_distance_au(), 2)
+            ));
+        }
+        if ui
+            .small_button("remove DSM")
+            .on_hover_text("Remove the manoeuvre (the swing-by stays shaped)")
+            .clicked()
+        {
+            out.push(Action::Edit(Edit::SetDsm { leg: k, dsm: None }));
+        }
+    });
+    if let Some(l) = m.launch {
+        ui.horizontal(|ui| {
+            ui.label(RichText::new("|").color(color).strong());
+            let (mut v, mut ra, mut dec) = (l.vinf_km_s, l.rla_deg, l.dla_deg);
+            let r1 = style::labelled(
+                ui,
+                "launch v∞",
+                DragValue::new(&mut v)
+                    .speed(0.01)
+                    .range(0.0..=20.0)
+                    .max_decimals(3)
+                    .suffix(" km/s"),
+            );
+            let r2 = style::labelled(
+                ui,
+                "RLA",
+                DragValue::new(&mut ra)
+                    .speed(0.2)
+                    .range(0.0..=360.0)
+                    .max_decimals(1)
+                    .suffix("°"),
+            );
+            let r3 = style::labelled(
+                ui,
+                "DLA",
+                DragValue::new(&mut dec)
+                    .speed(0.2)
+                    .range(-90.0..=90.0)
+                    .max_decimals(1)
+                    .suffix("°"),
+            );
+            if r1.changed() || r2.changed() || r3.changed() {
+                let mut next = m;
+                next.launch = Some(LaunchVinf {
+                    vinf_km_s: v,
+                    rla_deg: ra,
+                    dla_deg: dec,
+                    ..l
+                });
+                out.push(Action::EditLive(Edit::SetDsm {
+                    leg: k,
+                    dsm: Some(next),
+                }));
+            }
+        });
+    }
 }
 
 fn arrival_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
@@ -682,16 +856,25 @@ impl LedgerPanel {
                         ui.label(RichText::new(EVENT_COLUMNS[c].header).strong());
                     }
                     ui.end_row();
-                    // Rows come from the report built with this very evaluation: one per stop.
-                    for (k, row) in vc.events.rows.iter().enumerate() {
+                    // Rows come from the report built with this very evaluation: one per stop
+                    // and one per deep-space manoeuvre (which has no stop number).
+                    for row in vc.events.rows.iter() {
+                        let stop_no = row[0].num().map(|x| x as usize);
+                        let k = stop_no.map(|n| n.saturating_sub(1)).unwrap_or(usize::MAX);
                         for &c in &LEDGER_VIEW_COLUMNS {
                             let text = row[c].display(EVENT_COLUMNS[c].decimals);
                             let col = EVENT_COLUMNS[c];
                             match col.key {
+                                "stop" if stop_no.is_none() => {
+                                    ui.label("");
+                                }
                                 "stop" => {
                                     if ui.selectable_label(vc.selected == k, text).clicked() {
                                         out.push(Action::Select(k));
                                     }
+                                }
+                                "kind" if report::is_dsm_row(row) => {
+                                    ui.label(RichText::new(text).italics());
                                 }
                                 "body" => {
                                     ui.label(RichText::new(&text).color(style::body_color(&text)));

@@ -138,10 +138,7 @@ impl SearchPanel {
                 .on_hover_text("One undo step")
                 .clicked()
             {
-                out.push(Action::Edit(Edit::ApplySchedule {
-                    epochs: res.epochs.clone(),
-                    legs: res.legs.clone(),
-                }));
+                out.push(Action::Edit(Edit::ApplySchedule(res.schedule.clone())));
             }
             if !res.front.is_empty() {
                 ui.label(format!(

@@ -145,6 +145,10 @@ pub struct SwingbySettings {
     /// [`crate::rules::DEFAULT_MAX_POWERED_DV_KM_S`] when absent.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_powered_dv_km_s: Option<f64>,
+    /// Largest periapsis altitude the optimiser may give a shaped swing-by, km;
+    /// [`crate::rules::default_max_altitude_km`] when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_altitude_km: Option<f64>,
     /// Targeted or shaped.
     #[serde(default)]
     pub mode: SwingbyMode,
@@ -186,6 +190,79 @@ pub struct LegOptions {
     /// Sense of motion.
     #[serde(default)]
     pub direction: Direction,
+    /// A deep-space manoeuvre on this leg: the leg coasts from its start, makes one impulse and
+    /// ends on a Lambert arc (with the options above) to the next stop.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub dsm: Option<Dsm>,
+}
+
+/// A deep-space manoeuvre (DSM): one impulse on a leg. The leg starts from a known state: on the
+/// first leg, the launch body plus the launch v∞ given in `launch`; after a swing-by, the
+/// outgoing state of a shaped (unpowered) swing-by. It coasts on a two-body arc to the
+/// manoeuvre, then flies a Lambert arc to the next stop at its epoch.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Dsm {
+    /// When the impulse is made.
+    pub at: DsmTime,
+    /// Smallest fraction of the leg's time of flight the optimiser may place it at.
+    #[serde(default = "default_min_fraction")]
+    pub min_fraction: f64,
+    /// Largest fraction.
+    #[serde(default = "default_max_fraction")]
+    pub max_fraction: f64,
+    /// First leg only: the launch v∞ the coast starts from.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub launch: Option<LaunchVinf>,
+}
+
+fn default_min_fraction() -> f64 {
+    crate::rules::DSM_FRACTION_BOUNDS.0
+}
+
+fn default_max_fraction() -> f64 {
+    crate::rules::DSM_FRACTION_BOUNDS.1
+}
+
+impl Dsm {
+    /// A manoeuvre at a fraction of its leg, with the default search bounds.
+    pub fn at_fraction(f: f64) -> Self {
+        Dsm {
+            at: DsmTime::Fraction(f),
+            min_fraction: default_min_fraction(),
+            max_fraction: default_max_fraction(),
+            launch: None,
+        }
+    }
+}
+
+/// When a deep-space manoeuvre is made.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub enum DsmTime {
+    /// A fraction (0 < η < 1) of the leg's time of flight after its start: it moves with the
+    /// stops' dates.
+    Fraction(f64),
+    /// A date, which must fall inside the leg.
+    Date(Epoch),
+}
+
+/// The launch v∞ as a vector: magnitude and the asymptote's direction (right ascension and
+/// declination in the Earth mean equator and equinox of J2000), with search bounds.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LaunchVinf {
+    /// Magnitude, km/s (C3 = v∞²).
+    pub vinf_km_s: f64,
+    /// Right ascension of the launch asymptote (RLA), degrees.
+    pub rla_deg: f64,
+    /// Declination of the launch asymptote (DLA), degrees.
+    pub dla_deg: f64,
+    /// Smallest magnitude the optimiser may choose, km/s (0 when absent).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub min_vinf_km_s: Option<f64>,
+    /// Largest magnitude the optimiser may choose, km/s (from the C3 limit, else 7 km/s).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_vinf_km_s: Option<f64>,
 }
 
 /// Launch limits.
@@ -360,6 +437,11 @@ impl MissionDesign {
     /// Lambert options of leg `k` (defaults when the file lists fewer legs).
     pub fn leg(&self, k: usize) -> LegOptions {
         self.legs.get(k).copied().unwrap_or_default()
+    }
+
+    /// True when any leg carries a deep-space manoeuvre.
+    pub fn has_dsm(&self) -> bool {
+        self.legs.iter().any(|l| l.dsm.is_some())
     }
 
     /// The sequence as letters, e.g. `E-V-E-J`.

@@ -6,9 +6,22 @@
 use tourwright_astro::time::Epoch;
 
 use crate::design::{
-    ArrivalGoal, EphemerisChoice, LaunchLimits, LaunchVehicle, LegOptions, MissionDesign,
-    Objective, Spacecraft, Stop, SwingbyMode,
+    ArrivalGoal, Dsm, EphemerisChoice, LaunchLimits, LaunchVehicle, LaunchVinf, LegOptions,
+    MissionDesign, Objective, Spacecraft, Stop, SwingbyMode,
 };
+use crate::evaluate::Evaluation;
+
+/// A search result to write into a design: every stop's epoch, every leg's options (revolution
+/// choices and manoeuvres included) and, per stop, a swing-by mode to set (`None` keeps it).
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct Schedule {
+    /// One epoch per stop.
+    pub epochs: Vec<Epoch>,
+    /// One set of options per leg.
+    pub legs: Vec<LegOptions>,
+    /// Per stop: the swing-by mode found (shaped swing-bys that start a manoeuvre leg).
+    pub modes: Vec<Option<SwingbyMode>>,
+}
 
 /// One change to a design.
 #[derive(Clone, Debug, PartialEq)]
@@ -40,13 +53,8 @@ pub enum Edit {
     },
     /// Set every stop's epoch at once.
     SetEpochs(Vec<Epoch>),
-    /// Apply a search result: every stop's epoch and every leg's Lambert options.
-    ApplySchedule {
-        /// One epoch per stop.
-        epochs: Vec<Epoch>,
-        /// One set of options per leg.
-        legs: Vec<LegOptions>,
-    },
+    /// Apply a search result: every stop's epoch, every leg's options, the swing-bys it shaped.
+    ApplySchedule(Schedule),
     /// Set both ends of a leg (a window-map click).
     SetLegEpochs {
         /// Leg index.
@@ -88,6 +96,23 @@ pub enum Edit {
         /// Options.
         options: LegOptions,
     },
+    /// Put a deep-space manoeuvre on a leg and, in the same step, set the mode of the swing-by
+    /// the leg starts from (a manoeuvre leg starts from a shaped swing-by). See [`Edit::add_dsm`].
+    AddDsm {
+        /// Leg index.
+        leg: usize,
+        /// The manoeuvre.
+        dsm: Dsm,
+        /// The start swing-by's new mode, if it changes.
+        start: Option<SwingbyMode>,
+    },
+    /// Change or remove a leg's deep-space manoeuvre.
+    SetDsm {
+        /// Leg index.
+        leg: usize,
+        /// The manoeuvre, or `None` to remove it.
+        dsm: Option<Dsm>,
+    },
     /// Set the arrival goal.
     SetArrival(ArrivalGoal),
     /// Set the launch limits.
@@ -122,6 +147,9 @@ pub enum EditError {
     /// The epochs do not fit the stops.
     #[error("{0}")]
     Epochs(&'static str),
+    /// A deep-space manoeuvre's rules (start state, place on the leg).
+    #[error("{0}")]
+    Dsm(&'static str),
 }
 
 impl Edit {
@@ -140,6 +168,9 @@ impl Edit {
             Edit::SetSwingbyMode { .. } => "swing-by mode",
             Edit::SetMinAltitude { .. } => "minimum altitude",
             Edit::SetLeg { .. } => "leg options",
+            Edit::AddDsm { .. } => "add manoeuvre",
+            Edit::SetDsm { dsm: None, .. } => "remove manoeuvre",
+            Edit::SetDsm { .. } => "move manoeuvre",
             Edit::SetArrival(_) => "arrival goal",
             Edit::SetLaunchLimits(_) => "launch limits",
             Edit::SetSpacecraft(_) => "spacecraft",
@@ -182,19 +213,32 @@ impl Edit {
                     s.epoch = e;
                 }
             }
-            Edit::ApplySchedule { epochs, legs } => {
-                if epochs.len() != n || legs.len() + 1 != n {
+            Edit::ApplySchedule(Schedule {
+                epochs,
+                legs,
+                modes,
+            }) => {
+                if epochs.len() != n
+                    || legs.len() + 1 != n
+                    || !(modes.is_empty() || modes.len() == n)
+                {
                     return Err(EditError::Epochs(
                         "the stops changed since those dates were computed",
                     ));
                 }
-                for (s, e) in d.stops.iter_mut().zip(epochs) {
+                let mut next = d.clone();
+                for (s, e) in next.stops.iter_mut().zip(epochs) {
                     s.epoch = e;
                 }
-                d.legs = legs;
-                while d.legs.last() == Some(&LegOptions::default()) {
-                    d.legs.pop();
+                for (s, m) in next.stops.iter_mut().zip(modes) {
+                    if let Some(m) = m {
+                        s.swingby.mode = m;
+                    }
                 }
+                next.legs = legs;
+                trim_legs(&mut next);
+                check_dsms(&next)?;
+                *d = next;
             }
             Edit::SetLegEpochs {
                 leg,
@@ -238,6 +282,7 @@ impl Edit {
                     d.legs.insert(k + 1, LegOptions::default());
                 }
                 split_leg_bounds(d, k);
+                drop_orphan_dsms(d);
             }
             Edit::RemoveStop(k) => {
                 let k = stop(k)?;
@@ -251,6 +296,7 @@ impl Edit {
                     d.legs.remove(leg);
                 }
                 d.search.leg_tof.clear();
+                drop_orphan_dsms(d);
             }
             Edit::MoveStop { stop: k, earlier } => {
                 let k = stop(k)?;
@@ -270,20 +316,58 @@ impl Edit {
                     epoch: b.epoch,
                     ..a
                 };
+                drop_orphan_dsms(d);
             }
-            Edit::SetSwingbyMode { stop: k, mode } => d.stops[stop(k)?].swingby.mode = mode,
+            Edit::SetSwingbyMode { stop: k, mode } => {
+                let k = stop(k)?;
+                if mode == SwingbyMode::Targeted && d.leg(k).dsm.is_some() && k > 0 {
+                    return Err(EditError::Dsm(
+                        "the next leg has a deep-space manoeuvre, which starts from a shaped swing-by; remove the manoeuvre first",
+                    ));
+                }
+                d.stops[k].swingby.mode = mode;
+            }
             Edit::SetMinAltitude { stop: k, km } => d.stops[stop(k)?].swingby.min_altitude_km = km,
             Edit::SetLeg { leg, options } => {
                 if leg + 1 >= n {
                     return Err(EditError::NoLeg(leg));
                 }
-                while d.legs.len() <= leg {
-                    d.legs.push(LegOptions::default());
+                let mut next = d.clone();
+                while next.legs.len() <= leg {
+                    next.legs.push(LegOptions::default());
                 }
-                d.legs[leg] = options;
-                while d.legs.last() == Some(&LegOptions::default()) {
-                    d.legs.pop();
+                next.legs[leg] = options;
+                trim_legs(&mut next);
+                check_dsms(&next)?;
+                *d = next;
+            }
+            Edit::AddDsm { leg, dsm, start } => {
+                if leg + 1 >= n {
+                    return Err(EditError::NoLeg(leg));
                 }
+                let mut next = d.clone();
+                if let Some(m) = start {
+                    next.stops[leg].swingby.mode = m;
+                }
+                while next.legs.len() <= leg {
+                    next.legs.push(LegOptions::default());
+                }
+                next.legs[leg].dsm = Some(dsm);
+                check_dsms(&next)?;
+                *d = next;
+            }
+            Edit::SetDsm { leg, dsm } => {
+                if leg + 1 >= n {
+                    return Err(EditError::NoLeg(leg));
+                }
+                let mut next = d.clone();
+                while next.legs.len() <= leg {
+                    next.legs.push(LegOptions::default());
+                }
+                next.legs[leg].dsm = dsm;
+                trim_legs(&mut next);
+                check_dsms(&next)?;
+                *d = next;
             }
             Edit::SetArrival(a) => d.arrival = a,
             Edit::SetLaunchLimits(l) => d.launch = l,
@@ -295,6 +379,113 @@ impl Edit {
         }
         Ok(())
     }
+}
+
+impl Edit {
+    /// The edit that adds a manoeuvre at mid-leg to leg `leg`, starting from what the current
+    /// evaluation `e` flies: on the first leg the launch v∞ it has now; after a targeted swing-by,
+    /// a shaped one with the periapsis altitude and aim it has now (so the tour changes as little
+    /// as possible and the manoeuvre absorbs the rest).
+    pub fn add_dsm(d: &MissionDesign, e: &Evaluation, leg: usize) -> Result<Edit, EditError> {
+        if leg + 1 >= d.stops.len() {
+            return Err(EditError::NoLeg(leg));
+        }
+        let mut dsm = Dsm::at_fraction(0.5);
+        let mut start = None;
+        if leg == 0 {
+            let v = e.stops.first().map(|s| s.vinf_out).unwrap_or_default();
+            let (dla, rla) = crate::launch::dla_rla_deg(&v);
+            dsm.launch = Some(LaunchVinf {
+                vinf_km_s: v.norm(),
+                rla_deg: rla,
+                dla_deg: dla,
+                min_vinf_km_s: None,
+                max_vinf_km_s: None,
+            });
+        } else if d.stops[leg].swingby.mode == SwingbyMode::Targeted {
+            let sw = e.stops.get(leg).and_then(|s| s.swingby);
+            let min = sw.map(|w| w.min_altitude_km).unwrap_or(300.0);
+            let altitude_km = sw
+                .and_then(|w| w.altitude_km)
+                .filter(|a| a.is_finite())
+                .unwrap_or(min.max(1000.0))
+                .max(min);
+            let aim_deg = sw
+                .and_then(|w| w.bplane)
+                .map(|b| b.aim.to_degrees())
+                .filter(|a| a.is_finite())
+                .unwrap_or(0.0);
+            start = Some(SwingbyMode::Shaped {
+                altitude_km,
+                aim_deg,
+            });
+        }
+        Ok(Edit::AddDsm { leg, dsm, start })
+    }
+}
+
+/// Drop trailing default leg options (files stay short).
+fn trim_legs(d: &mut MissionDesign) {
+    while d.legs.last() == Some(&LegOptions::default()) {
+        d.legs.pop();
+    }
+}
+
+/// The manoeuvre rules a design must keep: the first leg's manoeuvre carries the launch v∞, a
+/// later one starts from a shaped swing-by, fractions lie in (0, 1).
+fn check_dsms(d: &MissionDesign) -> Result<(), EditError> {
+    for (k, l) in d.legs.iter().enumerate() {
+        let Some(m) = l.dsm else { continue };
+        if k + 1 >= d.stops.len() {
+            return Err(EditError::NoLeg(k));
+        }
+        if let crate::design::DsmTime::Fraction(f) = m.at {
+            if !(f > 0.0 && f < 1.0) {
+                return Err(EditError::Dsm(
+                    "a manoeuvre lies strictly inside its leg (0 < fraction < 1)",
+                ));
+            }
+        }
+        if !(m.min_fraction > 0.0 && m.min_fraction <= m.max_fraction && m.max_fraction < 1.0) {
+            return Err(EditError::Dsm(
+                "the manoeuvre's search bounds need 0 < min_fraction ≤ max_fraction < 1",
+            ));
+        }
+        if k == 0 && m.launch.is_none() {
+            return Err(EditError::Dsm(
+                "a manoeuvre on the first leg needs the launch v∞ it starts from",
+            ));
+        }
+        if k > 0 && m.launch.is_some() {
+            return Err(EditError::Dsm("only the first leg starts at launch"));
+        }
+        if k > 0 && d.stops[k].swingby.mode == SwingbyMode::Targeted {
+            return Err(EditError::Dsm(
+                "a manoeuvre leg starts from a shaped swing-by (set its altitude and aim first)",
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// After a structural edit, a manoeuvre whose leg no longer starts from a known state (launch v∞
+/// on the first leg, a shaped swing-by later) is removed; the edit stays one undo step.
+fn drop_orphan_dsms(d: &mut MissionDesign) {
+    let n = d.stops.len();
+    d.legs.truncate(n.saturating_sub(1));
+    for k in 0..d.legs.len() {
+        if let Some(m) = d.legs[k].dsm {
+            let ok = if k == 0 {
+                m.launch.is_some()
+            } else {
+                m.launch.is_none() && d.stops[k].swingby.mode != SwingbyMode::Targeted
+            };
+            if !ok {
+                d.legs[k].dsm = None;
+            }
+        }
+    }
+    trim_legs(d);
 }
 
 /// After inserting a stop after `k`, split leg k's search bounds between the two new legs (or

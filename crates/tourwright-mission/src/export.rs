@@ -22,17 +22,38 @@ pub fn ledger_csv(tour: &PreparedTour, e: &Evaluation) -> String {
     report::ledger(tour, e).to_csv()
 }
 
-/// Trajectory samples, heliocentric ecliptic J2000.
-pub fn samples_csv(e: &Evaluation) -> String {
-    let mut out =
-        String::from("leg,epoch_utc,tdb_days_since_j2000,x_km,y_km,z_km,vx_km_s,vy_km_s,vz_km_s\n");
+/// The pieces of each leg's samples: the whole leg, or the coast before its deep-space manoeuvre
+/// and the arc after it. `(leg, piece, range)` with piece 1 or 2.
+fn pieces(e: &Evaluation) -> Vec<(usize, usize, std::ops::Range<usize>)> {
+    let mut v = Vec::new();
     for (k, leg) in e.legs.iter().enumerate() {
-        for s in &e.samples[leg.samples.clone()] {
+        let r = leg.samples.clone();
+        match leg.dsm {
+            Some(d) if d.split > r.start && d.split < r.end => {
+                v.push((k, 1, r.start..d.split));
+                v.push((k, 2, d.split..r.end));
+            }
+            _ => v.push((k, 1, r)),
+        }
+    }
+    v
+}
+
+/// Trajectory samples, heliocentric ecliptic J2000. A leg with a deep-space manoeuvre has two
+/// pieces (column `piece`): the coast, whose last point is the manoeuvre with the velocity
+/// before it, and the arc, whose first point repeats it with the velocity after.
+pub fn samples_csv(e: &Evaluation) -> String {
+    let mut out = String::from(
+        "leg,piece,epoch_utc,tdb_days_since_j2000,x_km,y_km,z_km,vx_km_s,vy_km_s,vz_km_s\n",
+    );
+    for (k, piece, range) in pieces(e) {
+        for s in &e.samples[range] {
             let (r, v) = (s.state.r, s.state.v);
             let _ = writeln!(
                 out,
-                "{},{},{:.9},{:.3},{:.3},{:.3},{:.9},{:.9},{:.9}",
+                "{},{},{},{:.9},{:.3},{:.3},{:.3},{:.9},{:.9},{:.9}",
                 k + 1,
+                piece,
                 s.t.to_iso_utc(),
                 s.t.days(),
                 r.x,
@@ -61,7 +82,9 @@ fn oem_time(t: Tdb) -> String {
     )
 }
 
-/// The trajectory as a CCSDS OEM (KVN), version 2.0, time system TDB, one segment per leg.
+/// The trajectory as a CCSDS OEM (KVN), version 2.0, time system TDB, one segment per leg and a
+/// new segment at each deep-space manoeuvre (the velocity is discontinuous there, so no
+/// interpolation may cross it).
 /// `creation` is the CREATION_DATE written in the header (UTC).
 pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
     let mut out = String::new();
@@ -93,8 +116,8 @@ pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
         c.second.min(59)
     );
     let _ = writeln!(out, "ORIGINATOR = TOURWRIGHT");
-    for (k, leg) in e.legs.iter().enumerate() {
-        let pts = &e.samples[leg.samples.clone()];
+    for (k, piece, range) in pieces(e) {
+        let pts = &e.samples[range];
         if pts.is_empty() {
             continue;
         }
@@ -110,9 +133,14 @@ pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
         let _ = writeln!(out, "INTERPOLATION = HERMITE");
         let _ = writeln!(out, "INTERPOLATION_DEGREE = 5");
         let _ = writeln!(out, "META_STOP");
+        let what = match (e.legs[k].dsm.is_some(), piece) {
+            (false, _) => String::new(),
+            (true, 1) => ", coast to the deep-space manoeuvre".into(),
+            (true, _) => ", arc after the deep-space manoeuvre".into(),
+        };
         let _ = writeln!(
             out,
-            "COMMENT Leg {} of {}: {} to {}",
+            "COMMENT Leg {} of {}: {} to {}{what}",
             k + 1,
             e.legs.len(),
             tour.stops[k].body.name,

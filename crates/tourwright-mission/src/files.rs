@@ -148,6 +148,15 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 ));
             }
         }
+        if let Some(m) = s.swingby.max_altitude_km {
+            let min = s.swingby.min_altitude_km.unwrap_or(body.data.min_altitude_km);
+            if !(m.is_finite() && m >= min) {
+                return Err(bad(
+                    format!("stops[{k}].swingby.max_altitude_km"),
+                    format!("need a number at least the minimum altitude ({min} km)"),
+                ));
+            }
+        }
         if let SwingbyMode::Shaped {
             altitude_km,
             aim_deg,
@@ -179,6 +188,41 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 format!("legs[{k}].revolutions"),
                 "too many revolutions",
             ));
+        }
+        if let Some(m) = &l.dsm {
+            crate::tour::prepare_dsm(d, k, m)?;
+            if let crate::design::DsmTime::Date(e) = m.at {
+                let t = e.tdb().0;
+                if !(t > d.stops[k].epoch.tdb().0 && t < d.stops[k + 1].epoch.tdb().0) {
+                    return Err(bad(
+                        format!("legs[{k}].dsm.at"),
+                        format!(
+                            "{} is not inside the leg ({} .. {})",
+                            e.to_date_utc(),
+                            d.stops[k].epoch.to_date_utc(),
+                            d.stops[k + 1].epoch.to_date_utc()
+                        ),
+                    ));
+                }
+            }
+            if let Some(l) = m.launch {
+                for (name, v) in [("min_vinf_km_s", l.min_vinf_km_s), ("max_vinf_km_s", l.max_vinf_km_s)] {
+                    if v.is_some_and(|x| !(x.is_finite() && x >= 0.0)) {
+                        return Err(bad(
+                            format!("legs[{k}].dsm.launch.{name}"),
+                            "need a finite speed ≥ 0 km/s",
+                        ));
+                    }
+                }
+                if let (Some(a), Some(b)) = (l.min_vinf_km_s, l.max_vinf_km_s) {
+                    if a > b {
+                        return Err(bad(
+                            format!("legs[{k}].dsm.launch.max_vinf_km_s"),
+                            "the largest v∞ is below the smallest",
+                        ));
+                    }
+                }
+            }
         }
     }
     let sc = &d.spacecraft;

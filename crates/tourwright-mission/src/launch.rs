@@ -3,7 +3,7 @@
 
 use tourwright_astro::Vec3;
 use tourwright_astro::constants::G0_M_S2;
-use tourwright_astro::ephemeris::ecliptic_to_equatorial;
+use tourwright_astro::ephemeris::{ecliptic_to_equatorial, equatorial_to_ecliptic};
 
 use crate::design::LaunchVehicle;
 
@@ -24,6 +24,15 @@ pub fn dla_rla_deg(vinf_ecliptic: &Vec3) -> (f64, f64) {
     let dla = (q.z / n).clamp(-1.0, 1.0).asin().to_degrees();
     let rla = q.y.atan2(q.x).to_degrees().rem_euclid(360.0);
     (dla, rla)
+}
+
+/// The launch v∞ vector (ecliptic J2000) of magnitude `vinf` along the asymptote of right
+/// ascension `rla_deg` and declination `dla_deg` (Earth mean equator J2000): the inverse of
+/// [`dla_rla_deg`].
+pub fn asymptote_vector(vinf: f64, rla_deg: f64, dla_deg: f64) -> Vec3 {
+    let (sd, cd) = dla_deg.to_radians().sin_cos();
+    let (sr, cr) = rla_deg.to_radians().sin_cos();
+    equatorial_to_ecliptic(&Vec3::new(vinf * cd * cr, vinf * cd * sr, vinf * sd))
 }
 
 /// Injected mass at `c3` from the table by linear interpolation; `(mass, inside_table)`.
@@ -51,4 +60,19 @@ pub fn injected_mass(lv: &LaunchVehicle, c3: f64) -> Option<(f64, bool)> {
 #[inline]
 pub fn mass_ratio(dv_km_s: f64, isp_s: f64) -> f64 {
     (-dv_km_s * 1000.0 / (isp_s * G0_M_S2)).exp()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn asymptote_vector_inverts_dla_rla() {
+        for (rla, dla) in [(10.0, -28.5), (200.0, 45.0), (359.0, 0.0), (90.0, -80.0)] {
+            let v = asymptote_vector(3.5, rla, dla);
+            assert!((v.norm() - 3.5).abs() < 1e-12);
+            let (d, r) = dla_rla_deg(&v);
+            assert!((d - dla).abs() < 1e-9 && (r - rla).abs() < 1e-9, "{rla} {dla}: {r} {d}");
+        }
+    }
 }

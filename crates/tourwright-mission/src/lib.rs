@@ -18,7 +18,7 @@ pub mod score;
 pub mod tour;
 
 pub use design::MissionDesign;
-pub use edit::{Edit, EditError};
+pub use edit::{Edit, EditError, Schedule};
 pub use evaluate::{EvalOptions, Evaluation, evaluate, evaluate_design};
 pub use score::Objective;
 pub use tour::{Body, Catalog, PreparedTour};

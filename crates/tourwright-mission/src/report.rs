@@ -216,8 +216,11 @@ const fn col(key: &'static str, header: &'static str, decimals: usize) -> Column
     }
 }
 
+/// The `kind` cell of a deep-space manoeuvre's row in the event table.
+pub const DSM_KIND: &str = "DSM";
+
 /// Columns of the event table.
-pub const EVENT_COLUMNS: [Column; 20] = [
+pub const EVENT_COLUMNS: [Column; 21] = [
     col("stop", "#", 0),
     col("kind", "stop", 0),
     col("body", "body", 0),
@@ -238,16 +241,69 @@ pub const EVENT_COLUMNS: [Column; 20] = [
     col("energy_gain_km2_s2", "energy gain (km²/s²)", 2),
     col("dv_km_s", "Δv (km/s)", 3),
     col("mass_after_kg", "mass (kg)", 0),
+    col("sun_distance_au", "r (AU)", 3),
 ];
 
 /// Indices into [`EVENT_COLUMNS`] of the compact view the GUI ledger shows.
 pub const LEDGER_VIEW_COLUMNS: [usize; 11] = [0, 1, 2, 3, 5, 6, 7, 8, 18, 17, 19];
 
-/// The event table: one row per stop. Figures that do not apply to a stop are absent.
+/// The event table: one row per stop and, between them, one per deep-space manoeuvre (kind
+/// [`DSM_KIND`], no stop number). Figures that do not apply to a row are absent.
 pub fn events(tour: &PreparedTour, e: &Evaluation) -> Table {
     let n = e.stops.len().min(tour.stops.len());
-    let rows = (0..n)
-        .map(|k| {
+    let mut rows = Vec::with_capacity(n + e.legs.len());
+    for k in 0..n {
+        rows.push(stop_row(tour, e, k, n));
+        if let Some(d) = e.legs.get(k).and_then(|l| l.dsm.as_ref()) {
+            rows.push(dsm_row(tour, k, d));
+        }
+    }
+    Table {
+        columns: EVENT_COLUMNS.to_vec(),
+        rows,
+    }
+}
+
+/// True for a manoeuvre's row of the event table.
+pub fn is_dsm_row(row: &[Cell]) -> bool {
+    matches!(row.get(1), Some(Cell::Text(t)) if t == DSM_KIND)
+}
+
+fn dsm_row(tour: &PreparedTour, k: usize, d: &crate::evaluate::DsmResult) -> Vec<Cell> {
+    let num = |x: f64| Cell::Num(shown(x));
+    let none = || Cell::Num(None);
+    let leg = match (tour.stops.get(k), tour.stops.get(k + 1)) {
+        (Some(a), Some(b)) => format!("leg {} ({}-{})", k + 1, a.body.letter(), b.body.letter()),
+        _ => format!("leg {}", k + 1),
+    };
+    vec![
+        none(),
+        Cell::Text(DSM_KIND.into()),
+        Cell::Text(leg),
+        Cell::Text(d.t.to_iso_utc()),
+        num(d.t.mjd2000()),
+        none(),
+        none(),
+        none(),
+        none(),
+        none(),
+        none(),
+        none(),
+        none(),
+        num(d.v_before.norm()),
+        num(d.v_after.norm()),
+        num(d.energy_before),
+        num(d.energy_after),
+        num(d.energy_after - d.energy_before),
+        num(d.dv_km_s),
+        num(d.mass_after_kg),
+        num(d.sun_distance_au()),
+    ]
+}
+
+fn stop_row(tour: &PreparedTour, e: &Evaluation, k: usize, n: usize) -> Vec<Cell> {
+    {
+        {
             let s = &e.stops[k];
             let sw = s.swingby.filter(|_| s.kind == StopKind::SwingBy);
             let num = |x: f64| Cell::Num(shown(x));
@@ -287,12 +343,9 @@ pub fn events(tour: &PreparedTour, e: &Evaluation) -> Table {
                 },
                 num(s.dv_km_s),
                 num(s.mass_after_kg),
+                num(s.body_state.r.norm() / tourwright_astro::constants::AU_KM),
             ]
-        })
-        .collect();
-    Table {
-        columns: EVENT_COLUMNS.to_vec(),
-        rows,
+        }
     }
 }
 
@@ -319,9 +372,9 @@ pub fn ledger(tour: &PreparedTour, e: &Evaluation) -> Table {
             Cell::Num(shown(e.ledger.wet_mass_kg)),
         ]);
     }
-    for k in 1..n {
+    for k in 0..n {
         let s = &e.stops[k];
-        if s.dv_km_s > 0.0 {
+        if k > 0 && s.dv_km_s > 0.0 {
             rows.push(vec![
                 text(if s.kind == StopKind::Arrival {
                     "arrival manoeuvre"
@@ -332,6 +385,15 @@ pub fn ledger(tour: &PreparedTour, e: &Evaluation) -> Table {
                 Cell::Text(s.epoch.to_iso_utc()),
                 Cell::Num(shown(s.dv_km_s)),
                 Cell::Num(shown(s.mass_after_kg)),
+            ]);
+        }
+        if let Some(d) = e.legs.get(k).and_then(|l| l.dsm.as_ref()) {
+            rows.push(vec![
+                text("deep-space manoeuvre"),
+                Cell::Text(format!("leg {}", k + 1)),
+                Cell::Text(d.t.to_iso_utc()),
+                Cell::Num(shown(d.dv_km_s)),
+                Cell::Num(shown(d.mass_after_kg)),
             ]);
         }
     }
@@ -405,11 +467,29 @@ pub fn summary_line(tour: &PreparedTour, e: &Evaluation) -> String {
 
 /// The whole evaluation as JSON: the event table as `stops`, launch, arrival, ledger, warnings.
 pub fn to_json(tour: &PreparedTour, e: &Evaluation) -> Value {
-    let stops = events(tour, e).to_json();
-    let mut stops = match stops {
+    let mut table = events(tour, e);
+    table.rows.retain(|r| !is_dsm_row(r));
+    let mut stops = match table.to_json() {
         Value::Array(a) => a,
         _ => Vec::new(),
     };
+    let dsms: Vec<Value> = e
+        .dsms()
+        .map(|(k, d)| {
+            json!({
+                "leg": k + 1,
+                "epoch_utc": d.t.to_iso_utc(),
+                "mjd2000": shown(d.t.mjd2000()),
+                "fraction_of_leg": shown(d.fraction),
+                "dv_km_s": shown(d.dv_km_s),
+                "dv_vector_km_s": [shown(d.dv.x), shown(d.dv.y), shown(d.dv.z)],
+                "sun_distance_au": shown(d.sun_distance_au()),
+                "energy_before_km2_s2": shown(d.energy_before),
+                "energy_after_km2_s2": shown(d.energy_after),
+                "mass_after_kg": shown(d.mass_after_kg),
+            })
+        })
+        .collect();
     // Swing-by extras that are not table columns.
     for (k, v) in stops.iter_mut().enumerate() {
         if let (Some(sw), Value::Object(m)) = (e.stops[k].swingby, v) {
@@ -436,6 +516,7 @@ pub fn to_json(tour: &PreparedTour, e: &Evaluation) -> Value {
         "ephemeris": tour.ephemeris_name,
         "complete": e.complete,
         "stops": stops,
+        "dsms": dsms,
         "launch": {
             "c3_km2_s2": shown(e.launch.c3), "vinf_km_s": shown(e.launch.vinf),
             "dla_deg": shown(e.launch.dla_deg), "rla_deg": shown(e.launch.rla_deg),

@@ -22,6 +22,9 @@ pub enum RetargetError {
     /// The stop is not a shaped swing-by followed by another stop.
     #[error("stop {} is not a shaped swing-by with a following stop", .0 + 1)]
     NotShaped(usize),
+    /// The next leg has a deep-space manoeuvre, which already meets the next body.
+    #[error("leg {} has a deep-space manoeuvre, which meets the next body; remove it to retarget the swing-by instead", .0 + 1)]
+    HasDsm(usize),
     /// The design cannot be evaluated.
     #[error("{0}")]
     Design(String),
@@ -59,6 +62,9 @@ pub fn retarget(
     };
     if k == 0 || k + 1 >= n {
         return Err(RetargetError::NotShaped(k));
+    }
+    if d.leg(k).dsm.is_some() {
+        return Err(RetargetError::HasDsm(k));
     }
     let tour = PreparedTour::prepare(d).map_err(|e| RetargetError::Design(e.to_string()))?;
     let mut e = Evaluation::default();

@@ -54,3 +54,18 @@ pub fn retarget_tolerance_km(next: &BodyData) -> f64 {
 pub fn shown(x: f64) -> Option<f64> {
     (x.is_finite() && x.abs() < 1e15).then_some(x)
 }
+
+/// Default search bounds of a deep-space manoeuvre's place on its leg, as fractions of the leg's
+/// time of flight (ours: the manoeuvre stays clear of both encounters).
+pub const DSM_FRACTION_BOUNDS: (f64, f64) = (0.05, 0.95);
+
+/// Default largest periapsis altitude the optimiser gives a shaped swing-by, km: a periapsis
+/// radius of 20 planet radii (ours; far enough that the swing-by still turns usefully at typical
+/// v∞, near enough to stay well inside every planet's sphere of influence).
+pub fn default_max_altitude_km(radius_km: f64) -> f64 {
+    19.0 * radius_km.max(1.0)
+}
+
+/// Default largest launch v∞ the optimiser may choose when the design gives no C3 limit, km/s
+/// (ours: C3 49 km²/s², beyond most launch vehicles with a useful payload).
+pub const DEFAULT_MAX_LAUNCH_VINF_KM_S: f64 = 7.0;

@@ -15,8 +15,8 @@ use tourwright_astro::lambert::{Branch, Direction};
 use tourwright_astro::time::{Tdb, TimeScale};
 
 use crate::design::{
-    ArrivalGoal, EphemerisChoice, LaunchLimits, LaunchVehicle, MissionDesign, Spacecraft,
-    SwingbyMode,
+    ArrivalGoal, Dsm, DsmTime, EphemerisChoice, LaunchLimits, LaunchVehicle, MissionDesign,
+    Spacecraft, SwingbyMode,
 };
 use crate::files::Invalid;
 
@@ -227,17 +227,50 @@ pub struct TourStop {
     pub min_vinf_km_s: f64,
     /// Design limit on the powered-swing-by impulse here, km/s.
     pub max_powered_dv_km_s: f64,
+    /// Largest periapsis altitude a search may give a shaped swing-by here, km.
+    pub max_altitude_km: f64,
 }
 
-/// Lambert options of one leg.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+/// Lambert options of one leg, and its deep-space manoeuvre.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
 pub struct TourLeg {
-    /// Complete revolutions.
+    /// Complete revolutions (of the arc after the manoeuvre, when there is one).
     pub revs: u32,
     /// Branch for multi-revolution arcs.
     pub branch: Branch,
     /// Sense of motion.
     pub direction: Direction,
+    /// The deep-space manoeuvre, if any.
+    pub dsm: Option<TourDsm>,
+}
+
+/// A deep-space manoeuvre resolved for evaluation.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct TourDsm {
+    /// When it is made.
+    pub at: DsmWhen,
+    /// First leg: the launch v∞ (ecliptic J2000, km/s) the coast starts from.
+    pub launch_vinf: Option<tourwright_astro::Vec3>,
+}
+
+/// When a manoeuvre is made, as the engine reads it.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum DsmWhen {
+    /// Fraction of the leg's time of flight.
+    Fraction(f64),
+    /// An instant (must lie inside the leg).
+    At(Tdb),
+}
+
+impl DsmWhen {
+    /// The fraction of a leg from `t0` to `t1` (unclamped; outside (0, 1) the date is off the leg).
+    #[inline]
+    pub fn fraction(&self, t0: Tdb, t1: Tdb) -> f64 {
+        match *self {
+            DsmWhen::Fraction(f) => f,
+            DsmWhen::At(t) => (t.0 - t0.0) / (t1.0 - t0.0),
+        }
+    }
 }
 
 /// A design resolved for evaluation.
@@ -314,19 +347,26 @@ impl PreparedTour {
                     .swingby
                     .max_powered_dv_km_s
                     .unwrap_or(crate::rules::DEFAULT_MAX_POWERED_DV_KM_S),
+                max_altitude_km: s
+                    .swingby
+                    .max_altitude_km
+                    .unwrap_or(crate::rules::default_max_altitude_km(body.data.radius_km)),
                 body,
             });
         }
-        let legs = (0..n - 1)
-            .map(|k| {
-                let o = d.leg(k);
-                TourLeg {
-                    revs: o.revolutions,
-                    branch: o.branch,
-                    direction: o.direction,
-                }
-            })
-            .collect();
+        let mut legs = Vec::with_capacity(n - 1);
+        for k in 0..n - 1 {
+            let o = d.leg(k);
+            legs.push(TourLeg {
+                revs: o.revolutions,
+                branch: o.branch,
+                direction: o.direction,
+                dsm: match o.dsm {
+                    Some(m) => Some(prepare_dsm(d, k, &m)?),
+                    None => None,
+                },
+            });
+        }
         Ok(PreparedTour {
             name: d.name.clone(),
             stops,
@@ -339,6 +379,11 @@ impl PreparedTour {
             model: catalog.model().clone(),
             mu_sun: catalog.model().mu_sun(),
         })
+    }
+
+    /// True when any leg carries a deep-space manoeuvre.
+    pub fn has_dsm(&self) -> bool {
+        self.legs.iter().any(|l| l.dsm.is_some())
     }
 
     /// A two-stop tour between two bodies (window maps, direct transfers) under `model`.
@@ -354,6 +399,7 @@ impl PreparedTour {
             min_altitude_km: body.data.min_altitude_km,
             min_vinf_km_s: crate::rules::DEFAULT_MIN_VINF_KM_S,
             max_powered_dv_km_s: crate::rules::DEFAULT_MAX_POWERED_DV_KM_S,
+            max_altitude_km: crate::rules::default_max_altitude_km(body.data.radius_km),
             body,
             kind,
             t,
@@ -410,4 +456,62 @@ impl PreparedTour {
             stop.t = t;
         }
     }
+}
+
+/// Check a leg's manoeuvre against its leg and resolve it: a first leg needs the launch v∞; a
+/// later leg needs a shaped swing-by to start from; the fraction and its bounds lie in (0, 1).
+pub(crate) fn prepare_dsm(d: &MissionDesign, k: usize, m: &Dsm) -> Result<TourDsm, Invalid> {
+    let bad = |field: &str, reason: String| Invalid {
+        field: format!("legs[{k}].dsm{field}"),
+        reason,
+    };
+    if !(m.min_fraction > 0.0 && m.min_fraction <= m.max_fraction && m.max_fraction < 1.0) {
+        return Err(bad(
+            ".min_fraction",
+            "need 0 < min_fraction ≤ max_fraction < 1".into(),
+        ));
+    }
+    let at = match m.at {
+        DsmTime::Fraction(f) => {
+            if !(f > 0.0 && f < 1.0) {
+                return Err(bad(
+                    ".at",
+                    format!("the fraction {f} of the leg must lie strictly between 0 and 1"),
+                ));
+            }
+            DsmWhen::Fraction(f)
+        }
+        DsmTime::Date(e) => DsmWhen::At(e.tdb()),
+    };
+    let launch_vinf = if k == 0 {
+        let Some(l) = m.launch else {
+            return Err(bad(
+                "",
+                "a manoeuvre on the first leg needs the launch v∞ it starts from (launch: (vinf_km_s, rla_deg, dla_deg))".into(),
+            ));
+        };
+        if !(l.vinf_km_s.is_finite() && l.vinf_km_s >= 0.0 && l.rla_deg.is_finite() && l.dla_deg.abs() <= 90.0) {
+            return Err(bad(
+                ".launch",
+                "need a finite v∞ ≥ 0 km/s, a finite RLA and a DLA within ±90°".into(),
+            ));
+        }
+        Some(crate::launch::asymptote_vector(l.vinf_km_s, l.rla_deg, l.dla_deg))
+    } else {
+        if m.launch.is_some() {
+            return Err(bad(".launch", "only the first leg starts at launch".into()));
+        }
+        if d.stops[k].swingby.mode == SwingbyMode::Targeted {
+            return Err(bad(
+                "",
+                format!(
+                    "the leg starts at stop {} ({}), a targeted swing-by; a manoeuvre leg starts from a shaped swing-by (set its altitude and aim)",
+                    k + 1,
+                    d.stops[k].body
+                ),
+            ));
+        }
+        None
+    };
+    Ok(TourDsm { at, launch_vinf })
 }

@@ -266,10 +266,14 @@ pub fn explore(
         if inner.is_cancelled() {
             break;
         }
-        for (stop, e) in d.stops.iter_mut().zip(&r.epochs) {
-            stop.epoch = *e;
+        if tourwright_mission::Edit::ApplySchedule(r.schedule.clone())
+            .apply(&mut d)
+            .is_err()
+        {
+            ex.pruned
+                .push((label(s), "the optimum could not be written back".to_string()));
+            continue;
         }
-        d.legs = r.legs.clone();
         let (_, e) = evaluate_design(&d);
         progress.offer_best(r.value);
         ex.ranked.push(Candidate {

@@ -8,9 +8,14 @@ use rayon::prelude::*;
 
 use tourwright_astro::lambert::Branch;
 use tourwright_astro::time::{Epoch, Tdb};
-use tourwright_mission::design::{LegOptions, MissionDesign, SwingbyMode};
+use tourwright_mission::design::{
+    Dsm, DsmTime, LaunchVinf, LegOptions, MissionDesign, SwingbyMode,
+};
 use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate};
-use tourwright_mission::{Objective, PreparedTour};
+use tourwright_mission::launch::{asymptote_vector, dla_rla_deg};
+use tourwright_mission::rules::DEFAULT_MAX_LAUNCH_VINF_KM_S;
+use tourwright_mission::tour::{DsmWhen, TourDsm};
+use tourwright_mission::{Objective, PreparedTour, Schedule};
 
 use crate::job::Progress;
 use crate::polish::{LocalOptions, auglag_box, clamp_safe, compass_search};
@@ -96,6 +101,44 @@ pub struct Problem {
     pub integer: Vec<bool>,
     /// (leg, variable index) of each revolution choice.
     pub rev_vars: Vec<(usize, usize)>,
+    /// The variables of each leg with a deep-space manoeuvre (the MGA-1DSM model).
+    pub dsm_vars: Vec<DsmVars>,
+    /// The design's leg options (manoeuvre bounds and how dates are written back).
+    pub design_legs: Vec<LegOptions>,
+}
+
+/// The variables of a leg with a deep-space manoeuvre.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct DsmVars {
+    /// Leg index.
+    pub leg: usize,
+    /// Index of the manoeuvre's fraction of the leg, η.
+    pub eta: usize,
+    /// The variables of the state the leg starts from.
+    pub start: DsmStartVars,
+}
+
+/// How a manoeuvre leg's start is searched.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum DsmStartVars {
+    /// First leg: the launch v∞ magnitude (km/s) and direction as two numbers in [0, 1] that map
+    /// uniformly onto the sphere: RLA = 360° u, DLA = asin(2 w − 1).
+    Launch {
+        /// Index of |v∞|.
+        vinf: usize,
+        /// Index of u.
+        u: usize,
+        /// Index of w.
+        w: usize,
+    },
+    /// After a swing-by: an unpowered, shaped swing-by's periapsis altitude (km) and B-plane aim
+    /// (degrees).
+    Swingby {
+        /// Index of the altitude.
+        altitude: usize,
+        /// Index of the aim.
+        aim: usize,
+    },
 }
 
 /// Revolutions and branch of a revolution-choice variable's value.
@@ -115,11 +158,16 @@ pub fn rev_choice(v: f64) -> (u32, Branch) {
 }
 
 impl Problem {
-    /// The problem a design's search bounds describe.
+    /// The problem a design's search bounds describe. Legs without a manoeuvre are Lambert arcs
+    /// between the searched dates (their swing-bys targeted, powered if they must be); a leg with
+    /// a manoeuvre adds its fraction and its start (launch v∞ vector, or the altitude and aim of
+    /// the shaped swing-by it leaves) to the variables.
     pub fn from_design(d: &MissionDesign) -> Result<Self, ProblemError> {
         let mut tour = PreparedTour::prepare(d).map_err(|e| ProblemError::Design(e.to_string()))?;
-        for s in tour.stops.iter_mut() {
-            s.mode = SwingbyMode::Targeted;
+        for (k, s) in tour.stops.iter_mut().enumerate() {
+            if !(k > 0 && d.leg(k).dsm.is_some()) {
+                s.mode = SwingbyMode::Targeted;
+            }
         }
         let (a, b) = d.launch_window();
         let mut lo = vec![a.mjd2000()];
@@ -173,6 +221,52 @@ impl Problem {
                 }
             }
         }
+        let mut dsm_vars = Vec::new();
+        for k in 0..d.stops.len() - 1 {
+            let Some(m) = d.leg(k).dsm else { continue };
+            let mut push = |a: f64, b: f64| {
+                lo.push(a);
+                hi.push(b);
+                integer.push(false);
+                lo.len() - 1
+            };
+            let eta = push(m.min_fraction, m.max_fraction);
+            let start = if k == 0 {
+                let l = m.launch.unwrap_or(LaunchVinf {
+                    vinf_km_s: 3.0,
+                    rla_deg: 0.0,
+                    dla_deg: 0.0,
+                    min_vinf_km_s: None,
+                    max_vinf_km_s: None,
+                });
+                let top = l.max_vinf_km_s.unwrap_or(
+                    tour.launch
+                        .max_c3_km2_s2
+                        .map(|c| c.max(0.0).sqrt())
+                        .unwrap_or(DEFAULT_MAX_LAUNCH_VINF_KM_S),
+                );
+                let bottom = l.min_vinf_km_s.unwrap_or(0.0);
+                if !(bottom <= top) {
+                    return Err(bad(
+                        format!("legs[{k}].dsm.launch.max_vinf_km_s"),
+                        "the launch v∞ bounds are empty (check them and the C3 limit)",
+                    ));
+                }
+                let vinf = push(bottom, top);
+                let u = push(0.0, 1.0);
+                let dl = tour.launch.min_dla_deg.unwrap_or(-90.0).clamp(-90.0, 90.0);
+                let dh = tour.launch.max_dla_deg.unwrap_or(90.0).clamp(-90.0, 90.0);
+                let w_of = |dla: f64| 0.5 * (dla.to_radians().sin() + 1.0);
+                let w = push(w_of(dl), w_of(dh.max(dl)));
+                DsmStartVars::Launch { vinf, u, w }
+            } else {
+                let st = &tour.stops[k];
+                let altitude = push(st.min_altitude_km, st.max_altitude_km.max(st.min_altitude_km));
+                let aim = push(-180.0, 180.0);
+                DsmStartVars::Swingby { altitude, aim }
+            };
+            dsm_vars.push(DsmVars { leg: k, eta, start });
+        }
         let mut constraints = Vec::new();
         for (k, st) in tour.stops.iter().enumerate() {
             if st.kind == tourwright_mission::evaluate::StopKind::SwingBy && st.body.data.mu > 0.0 {
@@ -203,7 +297,14 @@ impl Problem {
             constraints,
             integer,
             rev_vars,
+            dsm_vars,
+            design_legs: (0..d.stops.len() - 1).map(|k| d.leg(k)).collect(),
         })
+    }
+
+    /// Total time of flight of `x`, days.
+    pub fn total_tof(&self, x: &[f64]) -> f64 {
+        x[1..=self.tour.legs.len()].iter().sum()
     }
 
     /// Number of variables.
@@ -221,6 +322,25 @@ impl Problem {
             tour.legs[k].revs = revs;
             tour.legs[k].branch = branch;
         }
+        for v in &self.dsm_vars {
+            let launch_vinf = match v.start {
+                DsmStartVars::Launch { vinf, u, w } => {
+                    let (rla, dla) = launch_angles(x[u], x[w]);
+                    Some(asymptote_vector(x[vinf], rla, dla))
+                }
+                DsmStartVars::Swingby { altitude, aim } => {
+                    tour.stops[v.leg].mode = SwingbyMode::Shaped {
+                        altitude_km: x[altitude],
+                        aim_deg: x[aim],
+                    };
+                    None
+                }
+            };
+            tour.legs[v.leg].dsm = Some(TourDsm {
+                at: DsmWhen::Fraction(x[v.eta]),
+                launch_vinf,
+            });
+        }
     }
 
     /// The stops' epochs at `x`, each in the scale its design writes it in.
@@ -233,18 +353,72 @@ impl Problem {
             .collect()
     }
 
-    /// Every leg's Lambert options at `x`.
+    /// Every leg's options at `x` (revolution choices and manoeuvres; a manoeuvre the design
+    /// dates keeps being dated, at its new date).
     pub fn legs_at(&self, x: &[f64]) -> Vec<LegOptions> {
         let mut t = self.tour.clone();
         self.apply(x, &mut t);
         t.legs
             .iter()
-            .map(|l| LegOptions {
+            .enumerate()
+            .map(|(k, l)| LegOptions {
                 revolutions: l.revs,
                 branch: l.branch,
                 direction: l.direction,
+                dsm: self.dsm_at(x, &t, k),
             })
             .collect()
+    }
+
+    fn dsm_at(&self, x: &[f64], t: &PreparedTour, k: usize) -> Option<Dsm> {
+        let mut m = self.design_legs.get(k).and_then(|l| l.dsm)?;
+        let v = self.dsm_vars.iter().find(|v| v.leg == k)?;
+        let eta = x[v.eta];
+        m.at = match m.at {
+            DsmTime::Fraction(_) => DsmTime::Fraction(eta),
+            DsmTime::Date(_) => {
+                let (a, b) = (t.stops[k].t, t.stops[k + 1].t);
+                DsmTime::Date(Epoch::from_tdb(
+                    Tdb(a.0 + eta * (b.0 - a.0)),
+                    t.stops[k].scale,
+                ))
+            }
+        };
+        if let DsmStartVars::Launch { vinf, u, w } = v.start {
+            let (rla_deg, dla_deg) = launch_angles(x[u], x[w]);
+            let old = m.launch;
+            m.launch = Some(LaunchVinf {
+                vinf_km_s: x[vinf],
+                rla_deg,
+                dla_deg,
+                min_vinf_km_s: old.and_then(|l| l.min_vinf_km_s),
+                max_vinf_km_s: old.and_then(|l| l.max_vinf_km_s),
+            });
+        }
+        Some(m)
+    }
+
+    /// Per stop, the swing-by mode at `x` for the shaped swing-bys the search varies.
+    pub fn modes_at(&self, x: &[f64]) -> Vec<Option<SwingbyMode>> {
+        let mut modes = vec![None; self.tour.stops.len()];
+        for v in &self.dsm_vars {
+            if let DsmStartVars::Swingby { altitude, aim } = v.start {
+                modes[v.leg] = Some(SwingbyMode::Shaped {
+                    altitude_km: x[altitude],
+                    aim_deg: x[aim],
+                });
+            }
+        }
+        modes
+    }
+
+    /// Everything a design takes from `x`.
+    pub fn schedule_at(&self, x: &[f64]) -> Schedule {
+        Schedule {
+            epochs: self.epochs_at(x),
+            legs: self.legs_at(x),
+            modes: self.modes_at(x),
+        }
     }
 
     /// The decision vector of a tour's current epochs and revolution choices.
@@ -261,6 +435,40 @@ impl Problem {
                 (n, Branch::Right) => 2 * n,
             };
             x.push((c as f64 + 0.5).min(self.hi[i]));
+        }
+        for v in &self.dsm_vars {
+            let k = v.leg;
+            let (a, b) = (tour.stops[k].t, tour.stops[k + 1].t);
+            let eta = tour.legs[k]
+                .dsm
+                .map(|m| m.at.fraction(a, b))
+                .unwrap_or(0.5);
+            x.push(clamp_safe(eta, self.lo[v.eta], self.hi[v.eta]));
+            match v.start {
+                DsmStartVars::Launch { vinf, u, w } => {
+                    let vv = tour.legs[k].dsm.and_then(|m| m.launch_vinf).unwrap_or_default();
+                    let (dla, rla) = dla_rla_deg(&vv);
+                    x.push(clamp_safe(vv.norm(), self.lo[vinf], self.hi[vinf]));
+                    x.push(clamp_safe(rla / 360.0, self.lo[u], self.hi[u]));
+                    let wv = 0.5 * (dla.to_radians().sin() + 1.0);
+                    x.push(clamp_safe(wv, self.lo[w], self.hi[w]));
+                }
+                DsmStartVars::Swingby { altitude, aim } => {
+                    let (alt, am) = match tour.stops[k].mode {
+                        SwingbyMode::Shaped {
+                            altitude_km,
+                            aim_deg,
+                        } => (altitude_km, aim_deg),
+                        SwingbyMode::Targeted => (self.lo[altitude], 0.0),
+                    };
+                    x.push(clamp_safe(alt, self.lo[altitude], self.hi[altitude]));
+                    x.push(clamp_safe(
+                        (am + 180.0).rem_euclid(360.0) - 180.0,
+                        self.lo[aim],
+                        self.hi[aim],
+                    ));
+                }
+            }
         }
         x
     }
@@ -374,6 +582,14 @@ impl Problem {
     }
 }
 
+/// RLA and DLA (degrees) of the two launch-direction numbers in [0, 1] (uniform on the sphere).
+pub fn launch_angles(u: f64, w: f64) -> (f64, f64) {
+    (
+        360.0 * u,
+        (2.0 * w - 1.0).clamp(-1.0, 1.0).asin().to_degrees(),
+    )
+}
+
 /// A limit the optimiser keeps, as `g ≤ 0`.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Constraint {
@@ -459,10 +675,9 @@ pub struct OptimizeResult {
     pub x: Vec<f64>,
     /// Its penalised score.
     pub value: f64,
-    /// The stops' epochs at the optimum (each in its design's time scale).
-    pub epochs: Vec<Epoch>,
-    /// Every leg's Lambert options at the optimum (revolution choices included).
-    pub legs: Vec<LegOptions>,
+    /// What the design takes from the optimum: epochs (each in its design's time scale), leg
+    /// options (revolution choices, manoeuvres) and the shaped swing-bys' altitude and aim.
+    pub schedule: Schedule,
     /// Objective evaluations used.
     pub evaluations: u64,
     /// Trade-off front: (total TOF days, score) pairs, none dominated, sorted by TOF.
@@ -584,7 +799,7 @@ impl Island {
             let ft = p.score(&self.trial, &mut self.work);
             progress.count_evals(1);
             if want_front && ft < 1e8 {
-                let tof: f64 = self.trial[1..].iter().sum();
+                let tof = p.total_tof(&self.trial);
                 add_front(&mut self.front, (tof, ft));
             }
             if ft <= self.fit[i] {
@@ -913,7 +1128,7 @@ pub fn optimize(
         if want_front {
             for c in &chains {
                 if c.fx < 1e8 {
-                    add_front(&mut islands[0].front, (c.x[1..].iter().sum(), c.fx));
+                    add_front(&mut islands[0].front, (p.total_tof(&c.x), c.fx));
                 }
             }
         }
@@ -956,8 +1171,7 @@ pub fn optimize(
     }
     front.sort_by(|a, b| a.0.total_cmp(&b.0));
     OptimizeResult {
-        epochs: p.epochs_at(&x),
-        legs: p.legs_at(&x),
+        schedule: p.schedule_at(&x),
         x,
         value,
         evaluations: evals,

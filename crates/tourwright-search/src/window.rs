@@ -256,6 +256,7 @@ pub fn compute(
             revs: spec.leg.revolutions,
             branch: spec.leg.branch,
             direction: spec.leg.direction,
+            dsm: None,
         },
     );
     template.arrival = spec.goal;

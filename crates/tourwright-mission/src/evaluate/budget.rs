@@ -75,12 +75,20 @@ pub fn ledger(tour: &PreparedTour, out: &mut Evaluation) {
     let mut m = wet;
     let mut ratio_total = 1.0;
     let mut total_dv = 0.0;
-    for s in out.stops.iter_mut() {
+    // In time order: each stop's manoeuvre, then the manoeuvre on the leg that leaves it.
+    for (k, s) in out.stops.iter_mut().enumerate() {
         let r = launch::mass_ratio(s.dv_km_s, sc.isp_s);
         m *= r;
         ratio_total *= r;
         total_dv += s.dv_km_s;
         s.mass_after_kg = m;
+        if let Some(d) = out.legs.get_mut(k).and_then(|l| l.dsm.as_mut()) {
+            let r = launch::mass_ratio(d.dv_km_s, sc.isp_s);
+            m *= r;
+            ratio_total *= r;
+            total_dv += d.dv_km_s;
+            d.mass_after_kg = m;
+        }
     }
     let needed = wet - m;
     out.ledger = Ledger {
@@ -153,6 +161,16 @@ pub fn drop_non_finite(out: &mut Evaluation) {
     }
     for l in out.legs.iter_mut() {
         fix(&mut l.tof_days, "a time of flight");
+        if let Some(d) = l.dsm.as_mut() {
+            for c in d.r.iter_mut().chain(d.v_before.iter_mut()).chain(d.v_after.iter_mut()).chain(d.dv.iter_mut()) {
+                fix(c, "a deep-space manoeuvre");
+            }
+            fix(&mut d.dv_km_s, "a deep-space manoeuvre Δv");
+            fix(&mut d.fraction, "a deep-space manoeuvre's place");
+            fix(&mut d.energy_before, "a heliocentric energy");
+            fix(&mut d.energy_after, "a heliocentric energy");
+            fix(&mut d.mass_after_kg, "a spacecraft mass");
+        }
     }
     for smp in out.samples.iter_mut() {
         for c in smp.state.r.iter_mut().chain(smp.state.v.iter_mut()) {

@@ -9,10 +9,10 @@ use tourwright_astro::lambert;
 use tourwright_astro::time::Tdb;
 use tourwright_astro::{State, Vec3};
 
-use super::{EvalOptions, Evaluation, LegResult, Sample, StopResult, Warning};
+use super::{DsmResult, EvalOptions, Evaluation, LegResult, Sample, StopResult, Warning};
 use crate::design::SwingbyMode;
 use crate::rules;
-use crate::tour::{Body, PreparedTour};
+use crate::tour::{Body, PreparedTour, TourDsm};
 
 /// Fill one `StopResult` per stop with its epoch and the body's state. False (with warnings)
 /// when a state is unavailable or the stops are out of time order.
@@ -71,6 +71,9 @@ pub fn ballistic_arrival(
 /// Solve leg `k` and fill both stops' heliocentric velocities and v∞. False (with a warning) when
 /// the leg has no solution; evaluation stops there.
 pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluation) -> bool {
+    if let Some(m) = tour.legs[k].dsm {
+        return dsm_leg(tour, k, &m, opts, out);
+    }
     let (a, b) = (&tour.stops[k], &tour.stops[k + 1]);
     let tof = b.t.0 - a.t.0;
     let from = out.stops[k].body_state;
@@ -159,6 +162,135 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
             });
         }
     }
+    true
+}
+
+/// The v∞ a manoeuvre leg starts with: the launch v∞ on the first leg, else the outgoing v∞ of
+/// the shaped swing-by it starts from (a targeted start, which `prepare` refuses, keeps v∞ in).
+pub fn dsm_start_vinf(tour: &PreparedTour, k: usize, m: &TourDsm, out: &Evaluation) -> Vec3 {
+    if k == 0 {
+        return m.launch_vinf.unwrap_or_default();
+    }
+    let a = &tour.stops[k];
+    match a.mode {
+        SwingbyMode::Shaped {
+            altitude_km,
+            aim_deg,
+        } => shaped_vinf_out(&a.body.data, &out.stops[k].vinf_in, altitude_km, aim_deg),
+        SwingbyMode::Targeted => out.stops[k].vinf_in,
+    }
+}
+
+/// A leg with a deep-space manoeuvre: coast from the start state for a fraction η of the time of
+/// flight, one impulse, then a Lambert arc to the next stop at its epoch.
+fn dsm_leg(
+    tour: &PreparedTour,
+    k: usize,
+    m: &TourDsm,
+    opts: &EvalOptions,
+    out: &mut Evaluation,
+) -> bool {
+    let (a, b) = (&tour.stops[k], &tour.stops[k + 1]);
+    let tof = b.t.0 - a.t.0;
+    let from = out.stops[k].body_state;
+    let to = out.stops[k + 1].body_state;
+    let mut leg = LegResult {
+        tof_days: tof / DAY_S,
+        ..Default::default()
+    };
+    let vout = dsm_start_vinf(tour, k, m, out);
+    let raw = m.at.fraction(a.t, b.t);
+    if !(raw > 0.0 && raw < 1.0) {
+        out.warnings.push(Warning::DsmOutsideLeg {
+            leg: k,
+            fraction: if raw.is_finite() { raw } else { 0.0 },
+        });
+    }
+    // A manoeuvre on an encounter is still evaluated (just after it, or just before the next).
+    let eta = if raw.is_finite() {
+        raw.clamp(1e-9, 1.0 - 1e-9)
+    } else {
+        0.5
+    };
+    let start = State {
+        r: from.r,
+        v: from.v + vout,
+    };
+    let t1 = eta * tof;
+    let coast = match kepler::propagate(&start, t1, tour.mu_sun) {
+        Ok(c) => c,
+        Err(e) => {
+            out.warnings
+                .push(Warning::NoBallisticArc { leg: k, reason: e });
+            out.legs.push(leg);
+            return false;
+        }
+    };
+    let l = &tour.legs[k];
+    let arc = match lambert::solve_revs(
+        &coast.r,
+        &to.r,
+        tof - t1,
+        tour.mu_sun,
+        l.direction,
+        l.revs,
+        l.branch,
+    ) {
+        Ok(s) => s,
+        Err(e) => {
+            out.warnings.push(Warning::NoArc { leg: k, reason: e });
+            out.legs.push(leg);
+            return false;
+        }
+    };
+    let dv = arc.v1 - coast.v;
+    let r = coast.r.norm();
+    let t_dsm = Tdb(a.t.0 + t1);
+    leg.v_depart = start.v;
+    leg.v_arrive = arc.v2;
+    leg.arrive_state = State {
+        r: to.r,
+        v: arc.v2,
+    };
+    leg.solved = true;
+    let m_pts = opts.samples_per_leg;
+    let (n1, n2) = if m_pts >= 2 {
+        let n1 = ((m_pts as f64 * eta).round() as usize).clamp(2, m_pts.max(4) - 2);
+        (n1, (m_pts - n1.min(m_pts)).max(2))
+    } else {
+        (0, 0)
+    };
+    let first = push_samples(out, a.t, start, t1, n1, tour.mu_sun);
+    let second = push_samples(
+        out,
+        t_dsm,
+        State {
+            r: coast.r,
+            v: arc.v1,
+        },
+        tof - t1,
+        n2,
+        tour.mu_sun,
+    );
+    leg.samples = first.start..second.end;
+    leg.dsm = Some(DsmResult {
+        t: t_dsm,
+        fraction: eta,
+        r: coast.r,
+        v_before: coast.v,
+        v_after: arc.v1,
+        dv,
+        dv_km_s: dv.norm(),
+        energy_before: 0.5 * coast.v.norm_squared() - tour.mu_sun / r,
+        energy_after: 0.5 * arc.v1.norm_squared() - tour.mu_sun / r,
+        mass_after_kg: 0.0,
+        split: second.start,
+    });
+    out.stops[k].v_helio_out = start.v;
+    out.stops[k].vinf_out = vout;
+    out.stops[k + 1].v_helio_in = arc.v2;
+    out.stops[k + 1].vinf_in = arc.v2 - to.v;
+    out.legs.push(leg);
     true
 }
 

@@ -122,6 +122,43 @@ pub struct LegResult {
     pub ballistic: bool,
     /// Range of this leg's points in `Evaluation::samples`.
     pub samples: std::ops::Range<usize>,
+    /// The deep-space manoeuvre, when the leg has one.
+    pub dsm: Option<DsmResult>,
+}
+
+/// A deep-space manoeuvre as flown.
+#[derive(Clone, Copy, Debug, PartialEq, Default)]
+pub struct DsmResult {
+    /// When.
+    pub t: Tdb,
+    /// Where on the leg, as a fraction of its time of flight.
+    pub fraction: f64,
+    /// Heliocentric position, km.
+    pub r: Vec3,
+    /// Heliocentric velocity before the impulse (end of the coast), km/s.
+    pub v_before: Vec3,
+    /// Heliocentric velocity after the impulse (start of the Lambert arc), km/s.
+    pub v_after: Vec3,
+    /// The impulse, km/s (ecliptic J2000).
+    pub dv: Vec3,
+    /// Its magnitude, km/s.
+    pub dv_km_s: f64,
+    /// Heliocentric specific energy before, km²/s².
+    pub energy_before: f64,
+    /// Heliocentric specific energy after, km²/s².
+    pub energy_after: f64,
+    /// Spacecraft mass after the impulse, kg.
+    pub mass_after_kg: f64,
+    /// Index into `Evaluation::samples` where the arc after the manoeuvre starts (its first
+    /// point repeats the manoeuvre's position with the new velocity).
+    pub split: usize,
+}
+
+impl DsmResult {
+    /// Heliocentric distance, AU.
+    pub fn sun_distance_au(&self) -> f64 {
+        self.r.norm() / tourwright_astro::constants::AU_KM
+    }
 }
 
 /// One point of the trajectory for drawing and export.
@@ -282,6 +319,13 @@ pub enum Warning {
         /// Miss distance at the next epoch, km.
         miss_km: f64,
     },
+    /// A manoeuvre's date lies outside its leg (evaluated at the nearer end).
+    DsmOutsideLeg {
+        /// Leg index.
+        leg: usize,
+        /// The fraction of the leg the date falls at.
+        fraction: f64,
+    },
     /// A figure came out as a non-finite number and was dropped.
     NotFinite {
         /// Which figure.
@@ -357,6 +401,12 @@ impl fmt::Display for Warning {
                 stop + 1,
                 miss_km
             ),
+            Warning::DsmOutsideLeg { leg, fraction } => write!(
+                f,
+                "leg {}: the deep-space manoeuvre's date is outside the leg (at {:.0} % of it)",
+                leg + 1,
+                fraction * 100.0
+            ),
             Warning::NotFinite { what } => {
                 write!(f, "{what} could not be computed (not a finite number)")
             }
@@ -376,6 +426,7 @@ impl Warning {
                 | Warning::C3OverLimit { .. }
                 | Warning::TurnImpossible { .. }
                 | Warning::DlaOutOfRange { .. }
+                | Warning::DsmOutsideLeg { .. }
         )
     }
 }
@@ -449,6 +500,14 @@ impl Evaluation {
             0.0
         };
         Some(a.state.r + (b.state.r - a.state.r) * f)
+    }
+
+    /// The deep-space manoeuvres with their legs, in time order.
+    pub fn dsms(&self) -> impl Iterator<Item = (usize, &DsmResult)> {
+        self.legs
+            .iter()
+            .enumerate()
+            .filter_map(|(k, l)| l.dsm.as_ref().map(|d| (k, d)))
     }
 
     /// True when a warning says the tour breaks a hard limit.
