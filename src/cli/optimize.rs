@@ -47,7 +47,7 @@ pub fn run(
     let r = optimize::optimize(&p, &opts, &Progress::new(), front.is_some());
     tourwright_mission::Edit::ApplySchedule(r.schedule.clone())
         .apply(&mut d)
-    .map_err(|e| e.to_string())?;
+        .map_err(|e| e.to_string())?;
     super::out(&format!(
         "objective {}: {:.4} -> {:.4} after {} evaluations in {:.2} s",
         d.search.objective.label(),

@@ -149,7 +149,10 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
             }
         }
         if let Some(m) = s.swingby.max_altitude_km {
-            let min = s.swingby.min_altitude_km.unwrap_or(body.data.min_altitude_km);
+            let min = s
+                .swingby
+                .min_altitude_km
+                .unwrap_or(body.data.min_altitude_km);
             if !(m.is_finite() && m >= min) {
                 return Err(bad(
                     format!("stops[{k}].swingby.max_altitude_km"),
@@ -206,7 +209,10 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 }
             }
             if let Some(l) = m.launch {
-                for (name, v) in [("min_vinf_km_s", l.min_vinf_km_s), ("max_vinf_km_s", l.max_vinf_km_s)] {
+                for (name, v) in [
+                    ("min_vinf_km_s", l.min_vinf_km_s),
+                    ("max_vinf_km_s", l.max_vinf_km_s),
+                ] {
                     if v.is_some_and(|x| !(x.is_finite() && x >= 0.0)) {
                         return Err(bad(
                             format!("legs[{k}].dsm.launch.{name}"),

@@ -72,7 +72,10 @@ mod tests {
             let v = asymptote_vector(3.5, rla, dla);
             assert!((v.norm() - 3.5).abs() < 1e-12);
             let (d, r) = dla_rla_deg(&v);
-            assert!((d - dla).abs() < 1e-9 && (r - rla).abs() < 1e-9, "{rla} {dla}: {r} {d}");
+            assert!(
+                (d - dla).abs() < 1e-9 && (r - rla).abs() < 1e-9,
+                "{rla} {dla}: {r} {d}"
+            );
         }
     }
 }

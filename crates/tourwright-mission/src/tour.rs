@@ -490,13 +490,21 @@ pub(crate) fn prepare_dsm(d: &MissionDesign, k: usize, m: &Dsm) -> Result<TourDs
                 "a manoeuvre on the first leg needs the launch v∞ it starts from (launch: (vinf_km_s, rla_deg, dla_deg))".into(),
             ));
         };
-        if !(l.vinf_km_s.is_finite() && l.vinf_km_s >= 0.0 && l.rla_deg.is_finite() && l.dla_deg.abs() <= 90.0) {
+        if !(l.vinf_km_s.is_finite()
+            && l.vinf_km_s >= 0.0
+            && l.rla_deg.is_finite()
+            && l.dla_deg.abs() <= 90.0)
+        {
             return Err(bad(
                 ".launch",
                 "need a finite v∞ ≥ 0 km/s, a finite RLA and a DLA within ±90°".into(),
             ));
         }
-        Some(crate::launch::asymptote_vector(l.vinf_km_s, l.rla_deg, l.dla_deg))
+        Some(crate::launch::asymptote_vector(
+            l.vinf_km_s,
+            l.rla_deg,
+            l.dla_deg,
+        ))
     } else {
         if m.launch.is_some() {
             return Err(bad(".launch", "only the first leg starts at launch".into()));

@@ -270,8 +270,10 @@ pub fn explore(
             .apply(&mut d)
             .is_err()
         {
-            ex.pruned
-                .push((label(s), "the optimum could not be written back".to_string()));
+            ex.pruned.push((
+                label(s),
+                "the optimum could not be written back".to_string(),
+            ));
             continue;
         }
         let (_, e) = evaluate_design(&d);

@@ -9,7 +9,7 @@ use rayon::prelude::*;
 use tourwright_astro::lambert::Branch;
 use tourwright_astro::time::{Epoch, Tdb};
 use tourwright_mission::design::{
-    Dsm, DsmTime, LaunchVinf, LegOptions, MissionDesign, SwingbyMode,
+    ArrivalGoal, Dsm, DsmTime, LaunchVinf, LegOptions, MissionDesign, SwingbyMode,
 };
 use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate};
 use tourwright_mission::launch::{asymptote_vector, dla_rla_deg};
@@ -18,7 +18,9 @@ use tourwright_mission::tour::{DsmWhen, TourDsm};
 use tourwright_mission::{Objective, PreparedTour, Schedule};
 
 use crate::job::Progress;
-use crate::polish::{LocalOptions, auglag_box, clamp_safe, compass_search};
+use crate::polish::{
+    LocalOptions, NormBlocks, auglag_box, clamp_safe, compass_search, lm_sum_of_norms,
+};
 
 /// A small, fast, seedable generator (xoshiro256**, Blackman & Vigna 2018).
 #[derive(Clone, Debug)]
@@ -261,7 +263,10 @@ impl Problem {
                 DsmStartVars::Launch { vinf, u, w }
             } else {
                 let st = &tour.stops[k];
-                let altitude = push(st.min_altitude_km, st.max_altitude_km.max(st.min_altitude_km));
+                let altitude = push(
+                    st.min_altitude_km,
+                    st.max_altitude_km.max(st.min_altitude_km),
+                );
                 let aim = push(-180.0, 180.0);
                 DsmStartVars::Swingby { altitude, aim }
             };
@@ -300,6 +305,25 @@ impl Problem {
             dsm_vars,
             design_legs: (0..d.stops.len() - 1).map(|k| d.leg(k)).collect(),
         })
+    }
+
+    /// The variables that belong to leg `k` alone: its revolution choice, its manoeuvre's
+    /// fraction and the variables of the state it starts from.
+    pub fn leg_vars(&self, k: usize) -> Vec<usize> {
+        let mut v: Vec<usize> = self
+            .rev_vars
+            .iter()
+            .filter(|r| r.0 == k)
+            .map(|r| r.1)
+            .collect();
+        for d in self.dsm_vars.iter().filter(|d| d.leg == k) {
+            v.push(d.eta);
+            match d.start {
+                DsmStartVars::Launch { vinf, u, w } => v.extend([vinf, u, w]),
+                DsmStartVars::Swingby { altitude, aim } => v.extend([altitude, aim]),
+            }
+        }
+        v
     }
 
     /// Total time of flight of `x`, days.
@@ -439,14 +463,14 @@ impl Problem {
         for v in &self.dsm_vars {
             let k = v.leg;
             let (a, b) = (tour.stops[k].t, tour.stops[k + 1].t);
-            let eta = tour.legs[k]
-                .dsm
-                .map(|m| m.at.fraction(a, b))
-                .unwrap_or(0.5);
+            let eta = tour.legs[k].dsm.map(|m| m.at.fraction(a, b)).unwrap_or(0.5);
             x.push(clamp_safe(eta, self.lo[v.eta], self.hi[v.eta]));
             match v.start {
                 DsmStartVars::Launch { vinf, u, w } => {
-                    let vv = tour.legs[k].dsm.and_then(|m| m.launch_vinf).unwrap_or_default();
+                    let vv = tour.legs[k]
+                        .dsm
+                        .and_then(|m| m.launch_vinf)
+                        .unwrap_or_default();
                     let (dla, rla) = dla_rla_deg(&vv);
                     x.push(clamp_safe(vv.norm(), self.lo[vinf], self.hi[vinf]));
                     x.push(clamp_safe(rla / 360.0, self.lo[u], self.hi[u]));
@@ -516,6 +540,80 @@ impl Problem {
             g[j] = if v.is_finite() { v } else { 1.0 };
         }
         base
+    }
+
+    /// The objective as a sum of norms (launch v∞, each swing-by's and each manoeuvre's Δv, the
+    /// arrival Δv or v∞ vector, each constraint's weighted violation), when it is one: the Δv
+    /// objectives are; mass, C3 and time are not. Block lengths in [`Problem::residuals`] order.
+    pub fn norm_shape(&self) -> Option<NormBlocks> {
+        if !matches!(
+            self.objective,
+            Objective::TotalDvWithLaunchVinf | Objective::SpacecraftDv
+        ) {
+            return None;
+        }
+        let n = self.tour.stops.len();
+        let mut blocks = Vec::new();
+        if self.objective == Objective::TotalDvWithLaunchVinf {
+            blocks.push(1);
+        }
+        for k in 0..n - 1 {
+            if k > 0 {
+                blocks.push(1);
+            }
+            if self.tour.legs[k].dsm.is_some() || self.dsm_vars.iter().any(|v| v.leg == k) {
+                blocks.push(3);
+            }
+        }
+        match self.tour.arrival {
+            ArrivalGoal::Rendezvous => blocks.push(3),
+            ArrivalGoal::Capture { .. } => blocks.push(1),
+            ArrivalGoal::FlybyOnly => {}
+        }
+        blocks.extend(std::iter::repeat_n(1, self.constraints.len()));
+        Some(NormBlocks { blocks })
+    }
+
+    /// The residual vector of [`Problem::norm_shape`] at `x`, whose norms sum to the score. False
+    /// when `x` cannot be evaluated.
+    pub fn residuals(&self, x: &[f64], work: &mut Workspace, r: &mut [f64]) -> bool {
+        let mut g = std::mem::take(&mut work.g);
+        g.resize(self.constraints.len(), 0.0);
+        let base = self.evaluate_parts(x, work, &mut g);
+        let ok = base < 1e9;
+        if ok {
+            let e = &work.eval;
+            let n = e.stops.len();
+            let mut at = 0;
+            let mut put = |v: &[f64]| {
+                r[at..at + v.len()].copy_from_slice(v);
+                at += v.len();
+            };
+            if self.objective == Objective::TotalDvWithLaunchVinf {
+                put(&[e.launch.vinf]);
+            }
+            for k in 0..n - 1 {
+                if k > 0 {
+                    put(&[e.stops[k].dv_km_s]);
+                }
+                if let Some(d) = e.legs[k].dsm {
+                    put(&[d.dv.x, d.dv.y, d.dv.z]);
+                }
+            }
+            match self.tour.arrival {
+                ArrivalGoal::Rendezvous => {
+                    let v = e.stops[n - 1].vinf_in;
+                    put(&[v.x, v.y, v.z]);
+                }
+                ArrivalGoal::Capture { .. } => put(&[e.arrival.dv_km_s]),
+                ArrivalGoal::FlybyOnly => {}
+            }
+            for (c, gj) in self.constraints.iter().zip(&g) {
+                put(&[self.weight(c) * gj.max(0.0)]);
+            }
+        }
+        work.g = g;
+        ok
     }
 
     /// The penalty weight of each constraint, in the objective's units per unit of `g`: ours,
@@ -852,8 +950,11 @@ pub struct HopSettings {
     pub radius: f64,
     /// Failed hops before a chain restarts from a fresh point.
     pub fails_before_restart: usize,
-    /// Evaluations allowed to one local descent.
+    /// Evaluations allowed to one local descent (augmented Lagrangian with quasi-Newton solves).
     pub local_evals: usize,
+    /// Evaluations allowed to one Gauss-Newton descent of a sum of norms (tours with
+    /// manoeuvres; it converges in fewer evaluations).
+    pub local_evals_norms: usize,
     /// Share of the budget (or of the time) given to differential evolution first.
     pub de_share: f64,
     /// Basin-hopping chains.
@@ -866,6 +967,7 @@ impl Default for HopSettings {
             radius: 0.02,
             fails_before_restart: 20,
             local_evals: 2000,
+            local_evals_norms: 1500,
             de_share: 0.1,
             chains: 4,
         }
@@ -895,6 +997,32 @@ impl Chain {
         progress: &Progress,
     ) -> (Vec<f64>, f64, u64) {
         let work = &mut self.work;
+        if let Some(shape) = p.norm_shape().filter(|_| !p.dsm_vars.is_empty()) {
+            // Manoeuvre legs: a sum of norms whose terms may vanish; Gauss-Newton reaches a zero
+            // manoeuvre where a quasi-Newton method zigzags on the kink.
+            let mut rf = |x: &[f64], r: &mut [f64]| {
+                if progress.is_cancelled() {
+                    return false;
+                }
+                progress.count_evals(1);
+                p.residuals(x, work, r)
+            };
+            let (x, f, n) = lm_sum_of_norms(
+                &mut rf,
+                &shape,
+                x0,
+                &p.lo,
+                &p.hi,
+                &p.integer,
+                &LocalOptions {
+                    max_evals: hs.local_evals_norms,
+                    fd_step: 1e-7,
+                    f_tol: 1e-10,
+                },
+            );
+            let score = if f.is_finite() { f.min(1e9) } else { 1e9 };
+            return (x, score, n as u64);
+        }
         let mut fg = |x: &[f64], g: &mut [f64]| {
             if progress.is_cancelled() {
                 g.iter_mut().for_each(|v| *v = 1.0);
@@ -946,19 +1074,63 @@ impl Chain {
         x
     }
 
+    /// A move that changes one leg and keeps every other stop's date: redraw the leg's own
+    /// variables (its manoeuvre, the state it starts from, its revolutions) and either move the
+    /// stop at its start (the launch date for the first leg) anywhere inside the bounds or shift it
+    /// by the hop radius, the neighbouring time of flight absorbing the change. Tours with
+    /// manoeuvres have long valleys along which one encounter slides while the others hold
+    /// (launch date against first time of flight, for one); whole-vector perturbations cross them
+    /// only by luck.
+    fn leg_move(&mut self, p: &Problem, hs: &HopSettings) {
+        let legs = p.tour.legs.len();
+        self.trial.copy_from_slice(&self.x);
+        let k = self.rng.below(legs);
+        for i in p.leg_vars(k) {
+            self.trial[i] = p.lo[i] + self.rng.uniform() * (p.hi[i] - p.lo[i]);
+        }
+        // Absolute date of stop k (the launch for k = 0) moves; stop k+1's date holds.
+        let (ti, tj) = if k == 0 { (0, 1) } else { (k, k + 1) };
+        let far = self.rng.uniform() < 0.5;
+        let span = p.hi[ti] - p.lo[ti];
+        let delta = if far {
+            p.lo[ti] + self.rng.uniform() * span - self.x[ti]
+        } else {
+            (2.0 * self.rng.uniform() - 1.0) * hs.radius * span
+        };
+        // x[ti] grows by delta and x[tj] shrinks by it (for k = 0: launch later, first leg
+        // shorter); both stay inside their bounds.
+        let lo_d = (p.lo[ti] - self.x[ti]).max(self.x[tj] - p.hi[tj]);
+        let hi_d = (p.hi[ti] - self.x[ti]).min(self.x[tj] - p.lo[tj]);
+        let d = clamp_safe(delta, lo_d.min(0.0), hi_d.max(0.0));
+        self.trial[ti] = clamp_safe(self.x[ti] + d, p.lo[ti], p.hi[ti]);
+        self.trial[tj] = clamp_safe(self.x[tj] - d, p.lo[tj], p.hi[tj]);
+    }
+
     /// One hop: perturb the chain's best, descend, keep the result if it is better; restart
     /// from a fresh point after too many failures. Returns the evaluations spent.
     fn hop(
         &mut self,
         p: &Problem,
         pool: &[Vec<f64>],
+        incumbent: &[f64],
         hs: &HopSettings,
         progress: &Progress,
     ) -> u64 {
         let start = if self.fails >= hs.fails_before_restart || !self.fx.is_finite() {
             self.fails = 0;
             self.fx = f64::INFINITY;
-            self.fresh_start(p, pool)
+            if !p.dsm_vars.is_empty() && incumbent.len() == p.dim() && self.rng.uniform() < 0.5 {
+                // Manoeuvre tours: half the restarts leave from the best point of all chains
+                // with one leg redrawn, so effort gathers in the best funnel found so far.
+                self.x.copy_from_slice(incumbent);
+                self.leg_move(p, hs);
+                self.trial.clone()
+            } else {
+                self.fresh_start(p, pool)
+            }
+        } else if !p.dsm_vars.is_empty() && self.rng.uniform() < 0.5 {
+            self.leg_move(p, hs);
+            self.trial.clone()
         } else {
             for i in 0..p.dim() {
                 self.trial[i] = if p.integer[i] {
@@ -975,7 +1147,14 @@ impl Chain {
             self.trial.clone()
         };
         let (x, fx, n) = self.descend(p, &start, hs, progress);
-        if fx < self.fx - 1e-10 * self.fx.abs().max(1.0) {
+        let min_gain = if p.dsm_vars.is_empty() { 1e-10 } else { 1e-6 };
+        // After a restart the chain holds nothing (infinity): any finite result is taken.
+        let better = if self.fx.is_finite() {
+            fx < self.fx - min_gain * self.fx.abs().max(1.0)
+        } else {
+            fx.is_finite()
+        };
+        if better {
             if fx < self.best.1 {
                 self.best = (x.clone(), fx);
             }
@@ -1113,9 +1292,16 @@ pub fn optimize(
         if evals >= opts.max_evals || out_of_time(1.0) {
             break;
         }
+        let incumbent: Vec<f64> = chains
+            .iter()
+            .map(|c| &c.best)
+            .min_by(|a, b| a.1.total_cmp(&b.1))
+            .filter(|b| b.1.is_finite())
+            .map(|b| b.0.clone())
+            .unwrap_or_default();
         let used: u64 = chains
             .par_iter_mut()
-            .map(|c| c.hop(p, &pool, &hs, progress))
+            .map(|c| c.hop(p, &pool, &incumbent, &hs, progress))
             .sum();
         evals += used;
         progress.add(used);

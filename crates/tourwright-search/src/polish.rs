@@ -498,3 +498,208 @@ mod tests {
         assert_eq!(clamp_safe(f64::NAN, 0.0, 1.0), 0.0);
     }
 }
+
+/// The shape of a sum-of-norms objective F(x) = Σ_i ‖r_i(x)‖: the residual vector is the blocks
+/// r_1, r_2, ... laid end to end; `blocks[i]` is the length of block i.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct NormBlocks {
+    /// Length of each block.
+    pub blocks: Vec<usize>,
+}
+
+impl NormBlocks {
+    /// Total residual length.
+    pub fn len(&self) -> usize {
+        self.blocks.iter().sum()
+    }
+
+    /// True when there are no residuals.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// F = Σ ‖r_i‖ of a residual vector.
+    pub fn value(&self, r: &[f64]) -> f64 {
+        let mut at = 0;
+        let mut f = 0.0;
+        for &b in &self.blocks {
+            f += r[at..at + b].iter().map(|v| v * v).sum::<f64>().sqrt();
+            at += b;
+        }
+        f
+    }
+}
+
+/// Local minimisation of a sum of Euclidean norms F(x) = Σ_i ‖r_i(x)‖ on a box, by iteratively
+/// reweighted least squares with Levenberg-Marquardt steps (weights 1 / max(‖r_i‖, δ), the
+/// classic treatment of sums of norms: Weiszfeld's iteration generalised, e.g. Bissantz & al.,
+/// "Convergence analysis of generalized iteratively reweighted least squares algorithms on convex
+/// function spaces", SIAM J. Optim. 19(4), 2009). A block that can vanish (a manoeuvre that is not
+/// needed) is a kink for quasi-Newton methods; here it is a zero residual, which Gauss-Newton
+/// reaches in a few steps. The Jacobian is taken by forward differences in variables scaled to
+/// [0, 1]; variables with `fixed` set (integer choices) and empty sides of the box stay put.
+/// `res(x, r)` fills `r` and returns false when `x` cannot be evaluated. Returns the best point,
+/// its F and the evaluations spent.
+pub fn lm_sum_of_norms<R: FnMut(&[f64], &mut [f64]) -> bool>(
+    res: &mut R,
+    shape: &NormBlocks,
+    x0: &[f64],
+    lo: &[f64],
+    hi: &[f64],
+    fixed: &[bool],
+    opts: &LocalOptions,
+) -> (Vec<f64>, f64, usize) {
+    use nalgebra::{DMatrix, DVector};
+    let n = x0.len();
+    let m = shape.len();
+    let span: Vec<f64> = (0..n).map(|i| (hi[i] - lo[i]).max(0.0)).collect();
+    let free: Vec<usize> = (0..n)
+        .filter(|&i| span[i] > 0.0 && !fixed.get(i).copied().unwrap_or(false))
+        .collect();
+    let nf = free.len();
+    let mut evals = 0usize;
+    let mut eval = |x: &[f64], r: &mut [f64], evals: &mut usize| -> f64 {
+        *evals += 1;
+        if res(x, r) && r.iter().all(|v| v.is_finite()) {
+            shape.value(r)
+        } else {
+            f64::INFINITY
+        }
+    };
+    let mut x: Vec<f64> = (0..n).map(|i| clamp_safe(x0[i], lo[i], hi[i])).collect();
+    let mut r = vec![0.0; m];
+    let mut f = eval(&x, &mut r, &mut evals);
+    if !f.is_finite() || nf == 0 || m == 0 {
+        return (x, f, evals);
+    }
+    let h = opts.fd_step.max(1e-10);
+    let mut jac = DMatrix::<f64>::zeros(m, nf);
+    let mut rp = vec![0.0; m];
+    let mut xt = x.clone();
+    let mut rt = vec![0.0; m];
+    let mut lambda = 1e-3;
+    let mut delta = 1e-3 * (f / shape.blocks.len().max(1) as f64).max(1e-6);
+    let mut w = vec![0.0; m];
+    while evals + nf + 2 <= opts.max_evals {
+        // Jacobian in scaled variables (forward differences, backwards at the upper bound).
+        let mut ok = true;
+        for (c, &i) in free.iter().enumerate() {
+            let step = h * span[i];
+            let back = x[i] + step > hi[i];
+            let xi = x[i];
+            x[i] = if back { xi - step } else { xi + step };
+            let fp = eval(&x, &mut rp, &mut evals);
+            x[i] = xi;
+            if !fp.is_finite() {
+                ok = false;
+                break;
+            }
+            let s = if back { -h } else { h };
+            for j in 0..m {
+                jac[(j, c)] = (rp[j] - r[j]) / s;
+            }
+        }
+        if !ok {
+            break;
+        }
+        // Weights per block.
+        let mut at = 0;
+        for &b in &shape.blocks {
+            let norm = r[at..at + b].iter().map(|v| v * v).sum::<f64>().sqrt();
+            let wi = 1.0 / norm.max(delta);
+            w[at..at + b].iter_mut().for_each(|v| *v = wi);
+            at += b;
+        }
+        // Normal equations of the weighted problem.
+        let mut a = DMatrix::<f64>::zeros(nf, nf);
+        let mut g = DVector::<f64>::zeros(nf);
+        for j in 0..m {
+            let wj = w[j];
+            for p in 0..nf {
+                let jp = jac[(j, p)];
+                if jp == 0.0 {
+                    continue;
+                }
+                g[p] += wj * jp * r[j];
+                for q in p..nf {
+                    a[(p, q)] += wj * jp * jac[(j, q)];
+                }
+            }
+        }
+        for p in 0..nf {
+            for q in 0..p {
+                a[(p, q)] = a[(q, p)];
+            }
+        }
+        // Variables on a bound that the gradient pushes outwards are held there.
+        let u_of = |i: usize, xv: f64| (xv - lo[i]) / span[i];
+        let held: Vec<bool> = free
+            .iter()
+            .enumerate()
+            .map(|(c, &i)| {
+                let u = u_of(i, x[i]);
+                (u <= 0.0 && g[c] > 0.0) || (u >= 1.0 && g[c] < 0.0)
+            })
+            .collect();
+        let mut improved = false;
+        for _ in 0..12 {
+            let mut ad = a.clone();
+            for p in 0..nf {
+                if held[p] {
+                    for q in 0..nf {
+                        ad[(p, q)] = 0.0;
+                        ad[(q, p)] = 0.0;
+                    }
+                    ad[(p, p)] = 1.0;
+                } else {
+                    ad[(p, p)] += lambda * a[(p, p)].max(1e-12);
+                }
+            }
+            let mut rhs = -g.clone();
+            for p in 0..nf {
+                if held[p] {
+                    rhs[p] = 0.0;
+                }
+            }
+            let Some(chol) = ad.cholesky() else {
+                lambda *= 10.0;
+                continue;
+            };
+            let d = chol.solve(&rhs);
+            xt.copy_from_slice(&x);
+            for (c, &i) in free.iter().enumerate() {
+                xt[i] = clamp_safe(x[i] + d[c] * span[i], lo[i], hi[i]);
+            }
+            if evals >= opts.max_evals {
+                break;
+            }
+            let ft = eval(&xt, &mut rt, &mut evals);
+            if ft < f {
+                let gain = f - ft;
+                x.copy_from_slice(&xt);
+                r.copy_from_slice(&rt);
+                f = ft;
+                lambda = (lambda * 0.3).max(1e-9);
+                improved = true;
+                if gain <= opts.f_tol * (1.0 + f.abs()) {
+                    delta *= 0.1;
+                }
+                break;
+            }
+            lambda *= 10.0;
+            if lambda > 1e10 {
+                break;
+            }
+        }
+        if !improved {
+            // No step helps at this smoothing: sharpen it once, else stop.
+            if delta > 1e-9 {
+                delta *= 0.01;
+                lambda = 1e-3;
+                continue;
+            }
+            break;
+        }
+    }
+    (x, f, evals)
+}

@@ -162,7 +162,12 @@ pub fn drop_non_finite(out: &mut Evaluation) {
     for l in out.legs.iter_mut() {
         fix(&mut l.tof_days, "a time of flight");
         if let Some(d) = l.dsm.as_mut() {
-            for c in d.r.iter_mut().chain(d.v_before.iter_mut()).chain(d.v_after.iter_mut()).chain(d.dv.iter_mut()) {
+            for c in
+                d.r.iter_mut()
+                    .chain(d.v_before.iter_mut())
+                    .chain(d.v_after.iter_mut())
+                    .chain(d.dv.iter_mut())
+            {
                 fix(c, "a deep-space manoeuvre");
             }
             fix(&mut d.dv_km_s, "a deep-space manoeuvre Δv");

@@ -248,10 +248,7 @@ fn dsm_leg(
     let t_dsm = Tdb(a.t.0 + t1);
     leg.v_depart = start.v;
     leg.v_arrive = arc.v2;
-    leg.arrive_state = State {
-        r: to.r,
-        v: arc.v2,
-    };
+    leg.arrive_state = State { r: to.r, v: arc.v2 };
     leg.solved = true;
     let m_pts = opts.samples_per_leg;
     let (n1, n2) = if m_pts >= 2 {
