@@ -4,6 +4,7 @@
 //! non-zero exit status.
 
 mod compare;
+mod dsm;
 mod eval;
 mod explore;
 mod export;
@@ -179,6 +180,27 @@ pub enum Command {
         #[arg(long)]
         out: PathBuf,
     },
+    /// Add, move or remove a leg's deep-space manoeuvre (DSM).
+    Dsm {
+        /// Design file.
+        file: PathBuf,
+        /// Leg number (1-based: leg 1 runs from stop 1 to stop 2).
+        #[arg(long)]
+        leg: usize,
+        /// Place the manoeuvre at this fraction of the leg's time of flight (0 < F < 1).
+        #[arg(long, conflicts_with_all = ["date", "remove"])]
+        at: Option<f64>,
+        /// Place the manoeuvre on this date (inside the leg), e.g. 2031-05-01 or
+        /// 2031-05-01T12:00:00 TDB.
+        #[arg(long, conflicts_with = "remove")]
+        date: Option<String>,
+        /// Remove the leg's manoeuvre.
+        #[arg(long)]
+        remove: bool,
+        /// Where to write the changed design.
+        #[arg(long)]
+        out: PathBuf,
+    },
     /// Optimise a design's dates within its search bounds.
     Optimize {
         /// Design file.
@@ -318,6 +340,14 @@ pub fn run(cmd: Command) -> CliResult {
             move_epoch,
             out,
         } => retarget::run(&file, ephemeris, stop, move_epoch, &out),
+        Command::Dsm {
+            file,
+            leg,
+            at,
+            date,
+            remove,
+            out,
+        } => dsm::run(&file, leg, at, date.as_deref(), remove, &out),
         Command::Optimize {
             file,
             ephemeris,

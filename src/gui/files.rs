@@ -12,7 +12,7 @@ use super::action::PathPurpose;
 use super::app::TourwrightApp;
 
 /// Sample designs shipped inside the program (file name, text).
-pub const SAMPLES: [(&str, &str); 4] = [
+pub const SAMPLES: [(&str, &str); 5] = [
     (
         "lantern-jupiter-evej.tour.ron",
         include_str!("../../sample-missions/lantern-jupiter-evej.tour.ron"),
@@ -28,6 +28,10 @@ pub const SAMPLES: [(&str, &str); 4] = [
     (
         "ember-mercury-evvme.tour.ron",
         include_str!("../../sample-missions/ember-mercury-evvme.tour.ron"),
+    ),
+    (
+        "osprey-jupiter-eej.tour.ron",
+        include_str!("../../sample-missions/osprey-jupiter-eej.tour.ron"),
     ),
 ];
 

@@ -107,6 +107,9 @@ pub struct Problem {
     pub dsm_vars: Vec<DsmVars>,
     /// The design's leg options (manoeuvre bounds and how dates are written back).
     pub design_legs: Vec<LegOptions>,
+    /// The design's swing-by modes (a shaped swing-by searched as targeted is written back
+    /// shaped, with the geometry found).
+    pub design_modes: Vec<SwingbyMode>,
 }
 
 /// The variables of a leg with a deep-space manoeuvre.
@@ -304,6 +307,7 @@ impl Problem {
             rev_vars,
             dsm_vars,
             design_legs: (0..d.stops.len() - 1).map(|k| d.leg(k)).collect(),
+            design_modes: d.stops.iter().map(|s| s.swingby.mode).collect(),
         })
     }
 
@@ -422,9 +426,34 @@ impl Problem {
         Some(m)
     }
 
-    /// Per stop, the swing-by mode at `x` for the shaped swing-bys the search varies.
+    /// Per stop, the swing-by mode at `x` for the design's shaped swing-bys: those that start a
+    /// manoeuvre leg take their searched altitude and aim; the others were searched as targeted
+    /// and take the periapsis altitude and aim of that solution (ballistic only where it needed
+    /// no powered Δv; the workbench then shows the miss).
     pub fn modes_at(&self, x: &[f64]) -> Vec<Option<SwingbyMode>> {
         let mut modes = vec![None; self.tour.stops.len()];
+        let shaped_targeted: Vec<usize> = (1..self.tour.stops.len().saturating_sub(1))
+            .filter(|&k| {
+                matches!(self.design_modes.get(k), Some(SwingbyMode::Shaped { .. }))
+                    && !self.dsm_vars.iter().any(|v| v.leg == k)
+            })
+            .collect();
+        if !shaped_targeted.is_empty() {
+            let mut work = Workspace::new(self);
+            self.apply(x, &mut work.tour);
+            evaluate(&work.tour, &EvalOptions::SEARCH, &mut work.eval);
+            for k in shaped_targeted {
+                let sw = work.eval.stops.get(k).and_then(|s| s.swingby);
+                if let (Some(altitude_km), Some(b)) =
+                    (sw.and_then(|w| w.altitude_km), sw.and_then(|w| w.bplane))
+                {
+                    modes[k] = Some(SwingbyMode::Shaped {
+                        altitude_km,
+                        aim_deg: b.aim.to_degrees(),
+                    });
+                }
+            }
+        }
         for v in &self.dsm_vars {
             if let DsmStartVars::Swingby { altitude, aim } = v.start {
                 modes[v.leg] = Some(SwingbyMode::Shaped {
