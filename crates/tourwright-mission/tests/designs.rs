@@ -348,7 +348,18 @@ fn oem_export_parses_back_with_required_header() {
     assert_eq!(key("CCSDS_OEM_VERS").as_deref(), Some("2.0"));
     assert_eq!(key("CREATION_DATE").as_deref(), Some("2026-12-01T10:00:00"));
     assert!(key("ORIGINATOR").is_some());
-    assert_eq!(segs.len(), e.legs.len());
+    // One segment per leg, and a new one at each deep-space manoeuvre.
+    let mut pieces = Vec::new();
+    for l in &e.legs {
+        match l.dsm {
+            Some(m) => {
+                pieces.push(l.samples.start..m.split);
+                pieces.push(m.split..l.samples.end);
+            }
+            None => pieces.push(l.samples.clone()),
+        }
+    }
+    assert_eq!(segs.len(), pieces.len());
     for (k, seg) in segs.iter().enumerate() {
         for m in [
             "OBJECT_NAME",
@@ -364,7 +375,7 @@ fn oem_export_parses_back_with_required_header() {
                 "segment {k} lacks {m}"
             );
         }
-        let pts = &e.samples[e.legs[k].samples.clone()];
+        let pts = &e.samples[pieces[k].clone()];
         assert_eq!(seg.states.len(), pts.len());
         for ((t, s), p) in seg.states.iter().zip(pts) {
             assert!((t.0 - p.t.0).abs() < 1e-3);
@@ -373,7 +384,7 @@ fn oem_export_parses_back_with_required_header() {
         }
     }
     let csv = export::events_csv(&t, &e);
-    assert_eq!(csv.lines().count(), d.stops.len() + 1);
+    assert_eq!(csv.lines().count(), d.stops.len() + e.dsms().count() + 1);
     assert!(csv.starts_with("stop,kind,body,epoch_utc"));
     assert!(export::ledger_csv(&t, &e).contains("total Δv"));
     assert_eq!(export::samples_csv(&e).lines().count(), e.samples.len() + 1);
