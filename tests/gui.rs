@@ -569,3 +569,105 @@ fn ephemeris_model_is_picked_in_the_tour_panel_and_shown_in_the_status_bar() {
     );
     undo_redo_both_ways(&mut h, "ephemeris model");
 }
+
+/// A deep-space manoeuvre: add it from the tour panel, drag its marker along the leg in the Sun
+/// view (the figures follow; the drag is one undo step), undo restores it, remove it.
+#[test]
+fn add_a_manoeuvre_drag_it_along_the_leg_and_undo() {
+    let mut h = harness(0);
+    assert!(h.state().design().leg(0).dsm.is_none());
+    // The first "+ DSM" button belongs to leg 1 (launch to Venus).
+    h.get_all_by_label("+ DSM").next().unwrap().click();
+    h.run_steps(3);
+    let d = h.state().design().clone();
+    let m = d.leg(0).dsm.expect("the manoeuvre was added");
+    assert!(
+        m.launch.is_some(),
+        "a first-leg manoeuvre carries the launch v∞"
+    );
+    assert_ledger_matches(&h, "after adding a manoeuvre");
+    let res0 = h.state().eval.legs[0]
+        .dsm
+        .expect("the manoeuvre is evaluated");
+    assert!(
+        h.state()
+            .events
+            .rows
+            .iter()
+            .filter(|r| tourwright::mission::report::is_dsm_row(r))
+            .count()
+            >= 2
+    );
+    // Drag its marker along the leg.
+    h.run_steps(2);
+    let start = h
+        .state()
+        .views
+        .sun
+        .dsm_markers
+        .iter()
+        .find(|(k, _)| *k == 0)
+        .map(|(_, p)| *p)
+        .expect("the marker is drawn");
+    h.hover_at(start);
+    h.run_steps(1);
+    h.drag_at(start);
+    h.run_steps(1);
+    // Follow the leg towards Venus: move in small steps to where the marker for a later time
+    // would be (the track is the coast the leg starts with).
+    let venus = {
+        let e = &h.state().eval;
+        let st = e.stops[1].body_state.r;
+        let (s0, r0) = (start, res0.r);
+        // Screen direction from the marker towards Venus, using the view's scale along x.
+        let dx = (st.x - r0.x) as f32;
+        let dy = (st.y - r0.y) as f32;
+        let n = (dx * dx + dy * dy).sqrt().max(1.0);
+        (s0, eframe::egui::vec2(dx / n, -dy / n))
+    };
+    for i in 1..=12 {
+        h.hover_at(venus.0 + venus.1 * (4.0 * i as f32));
+        h.run_steps(1);
+    }
+    h.drop_at(venus.0 + venus.1 * 48.0);
+    h.run_steps(3);
+    let moved = h.state().design().leg(0).dsm.unwrap();
+    assert_ne!(moved.at, m.at, "the drag moved the manoeuvre");
+    let res1 = h.state().eval.legs[0].dsm.unwrap();
+    assert!(
+        (res1.t.0 - res0.t.0).abs() > 3600.0,
+        "a later or earlier date"
+    );
+    // Added from the current launch v∞, the coast is the leg's own arc: the manoeuvre slides
+    // along it at (nearly) zero cost.
+    assert!(
+        (res1.r - res0.r).norm() > 1.0e5,
+        "the marker moved along the leg"
+    );
+    assert!(res1.dv_km_s < 1e-3, "{}", res1.dv_km_s);
+    let row = h
+        .state()
+        .events
+        .rows
+        .iter()
+        .find(|r| tourwright::mission::report::is_dsm_row(r))
+        .unwrap()[3]
+        .display(0);
+    assert_eq!(row, res1.t.to_iso_utc(), "the ledger row follows");
+    // One undo step restores the manoeuvre where it was added.
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run_steps(3);
+    assert_eq!(h.state().design().leg(0).dsm.unwrap().at, m.at);
+    assert!((h.state().eval.legs[0].dsm.unwrap().dv_km_s - res0.dv_km_s).abs() < 1e-12);
+    // Another undo removes it; redo brings it back; the remove button takes it away.
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run_steps(3);
+    assert!(h.state().design().leg(0).dsm.is_none());
+    h.key_press_modifiers(Modifiers::COMMAND | Modifiers::SHIFT, Key::Z);
+    h.run_steps(3);
+    assert!(h.state().design().leg(0).dsm.is_some());
+    h.get_all_by_label("remove DSM").next().unwrap().click();
+    h.run_steps(3);
+    assert!(h.state().design().leg(0).dsm.is_none());
+    assert_ledger_matches(&h, "after removing the manoeuvre");
+}

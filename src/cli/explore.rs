@@ -37,12 +37,35 @@ pub struct Args {
     pub seed: u64,
     /// Share K/N.
     pub shard: Option<String>,
+    /// Which legs get a manoeuvre.
+    pub dsm: DsmArg,
     /// JSON-lines output of a shard.
     pub jsonl: Option<PathBuf>,
     /// Folders or files of shards to merge.
     pub merge: Vec<PathBuf>,
     /// Folder for ranked designs.
     pub out: Option<PathBuf>,
+}
+
+/// Which legs of an explored sequence get a deep-space manoeuvre.
+#[derive(Clone, Copy, Debug, clap::ValueEnum)]
+pub enum DsmArg {
+    /// No manoeuvres: Lambert legs and powered swing-bys within their limit.
+    None,
+    /// Legs that return to the body they left (Earth-Earth, Venus-Venus): v∞ leveraging.
+    Resonant,
+    /// Every leg (the swing-bys become unpowered and shaped).
+    Every,
+}
+
+impl From<DsmArg> for explore::DsmPolicy {
+    fn from(a: DsmArg) -> Self {
+        match a {
+            DsmArg::None => explore::DsmPolicy::None,
+            DsmArg::Resonant => explore::DsmPolicy::Resonant,
+            DsmArg::Every => explore::DsmPolicy::Every,
+        }
+    }
 }
 
 /// Read `K/N` (1-based K) into a 0-based share.
@@ -93,6 +116,7 @@ pub fn run(a: Args) -> CliResult {
         evals_per_sequence: a.evals,
         seed: a.seed,
         shard: a.shard.as_deref().map(parse_shard).transpose()?,
+        dsm: a.dsm.into(),
     };
     let mut template = MissionDesign::new_blank();
     template.launch.max_c3_km2_s2 = a.max_c3;

@@ -264,6 +264,9 @@ pub enum Command {
         /// (the MGA benchmark set's analytic model); default: mean-elements.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
+        /// Deep-space manoeuvres on explored legs (MGA-1DSM).
+        #[arg(long, value_enum, default_value = "none")]
+        dsm: explore::DsmArg,
         /// Explore only share K of N (1-based K), e.g. 3/16: for array jobs of a scheduler.
         /// Writes JSON lines to --jsonl (or to standard output).
         #[arg(long)]
@@ -371,6 +374,7 @@ pub fn run(cmd: Command) -> CliResult {
             evals,
             seed,
             out,
+            dsm,
             shard,
             jsonl,
             merge,
@@ -387,6 +391,7 @@ pub fn run(cmd: Command) -> CliResult {
             evals,
             seed,
             shard,
+            dsm,
             jsonl,
             merge,
             out,

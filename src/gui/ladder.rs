@@ -8,7 +8,6 @@ use egui_plot::{
     HLine, Legend, Line, LineStyle, MarkerShape, Plot, PlotPoint, PlotPoints, Points, Text,
 };
 
-use tourwright_astro::constants::MU_SUN;
 use tourwright_astro::kepler::escape_speed;
 use tourwright_mission::evaluate::StopKind;
 
@@ -58,17 +57,49 @@ impl LadderView {
                         continue;
                     }
                     let (a, b) = (&e.stops[k], &e.stops[k + 1]);
+                    let (xa, xb) = (a.epoch.days() - t0, b.epoch.days() - t0);
+                    // A manoeuvre splits the leg: a step at its date.
+                    let pts = match leg.dsm {
+                        Some(d) => {
+                            let xd = d.t.days() - t0;
+                            vec![
+                                [xa, a.energy_after],
+                                [xd, d.energy_before],
+                                [xd, d.energy_after],
+                                [xb, b.energy_before],
+                            ]
+                        }
+                        None => vec![[xa, a.energy_after], [xb, b.energy_before]],
+                    };
                     pl.line(
-                        Line::new(
-                            format!("leg {}", k + 1),
-                            PlotPoints::from(vec![
-                                [a.epoch.days() - t0, a.energy_after],
-                                [b.epoch.days() - t0, b.energy_before],
-                            ]),
-                        )
-                        .color(style::leg_color(k))
-                        .width(3.0),
+                        Line::new(format!("leg {}", k + 1), PlotPoints::from(pts))
+                            .color(style::leg_color(k))
+                            .width(3.0),
                     );
+                    if let Some(d) = leg.dsm {
+                        let xd = d.t.days() - t0;
+                        pl.points(
+                            Points::new(
+                                format!("DSM leg {}", k + 1),
+                                PlotPoints::from(vec![[xd, d.energy_after]]),
+                            )
+                            .shape(MarkerShape::Cross)
+                            .radius(7.0)
+                            .color(style::leg_color(k)),
+                        );
+                        pl.text(
+                            Text::new(
+                                "",
+                                PlotPoint::new(xd, d.energy_after),
+                                format!(
+                                    "DSM Δv {:.3}\nΔE {:+.1}",
+                                    d.dv_km_s,
+                                    d.energy_after - d.energy_before
+                                ),
+                            )
+                            .anchor(egui::Align2::LEFT_TOP),
+                        );
+                    }
                 }
                 for (k, s) in e.stops.iter().enumerate() {
                     let x = s.epoch.days() - t0;
@@ -132,7 +163,7 @@ impl LadderView {
                 let escape: Vec<[f64; 2]> = e
                     .samples
                     .iter()
-                    .map(|s| [s.t.days() - t0, escape_speed(MU_SUN, s.state.r.norm())])
+                    .map(|s| [s.t.days() - t0, escape_speed(tour.mu_sun, s.state.r.norm())])
                     .collect();
                 pl.line(
                     Line::new("local solar escape speed", PlotPoints::from(escape))

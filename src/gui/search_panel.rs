@@ -6,7 +6,7 @@ use eframe::egui::{self, RichText};
 use tourwright_astro::bodies::Planet;
 use tourwright_astro::time::Epoch;
 use tourwright_mission::{Edit, Objective};
-use tourwright_search::explore::ExploreSpec;
+use tourwright_search::explore::{DsmPolicy, ExploreSpec};
 use tourwright_search::optimize::OptimizeOptions;
 
 use super::action::{Action, Actions, JobKind, JobRequest, Pending};
@@ -33,6 +33,8 @@ pub struct SearchPanel {
     pub launch: (String, String),
     /// Evaluations per sequence.
     pub evals_per_sequence: u64,
+    /// Which legs get a deep-space manoeuvre.
+    pub dsm: DsmPolicy,
     /// Form error.
     pub error: Option<String>,
 }
@@ -49,6 +51,7 @@ impl Default for SearchPanel {
             max_tof_years: 7.0,
             launch: ("2030-01-01".into(), "2031-12-31".into()),
             evals_per_sequence: 40_000,
+            dsm: DsmPolicy::None,
             error: None,
         }
     }
@@ -232,6 +235,28 @@ impl SearchPanel {
                 .range(1000..=2_000_000)
                 .speed(500.0),
         );
+        ui.horizontal(|ui| {
+            let lab = ui.label("deep-space manoeuvres").on_hover_text(
+                "Give legs a manoeuvre (MGA-1DSM) so that v∞-leveraging sequences such as \
+                 E-E-J rank fairly; the swing-by before such a leg is unpowered",
+            );
+            let words = |p: DsmPolicy| {
+                DsmPolicy::ALL
+                    .iter()
+                    .find(|x| x.0 == p)
+                    .map(|x| x.2)
+                    .unwrap_or("")
+            };
+            egui::ComboBox::from_id_salt("explore-dsm")
+                .selected_text(words(self.dsm))
+                .show_ui(ui, |ui| {
+                    for (p, _, w) in DsmPolicy::ALL {
+                        ui.selectable_value(&mut self.dsm, p, w);
+                    }
+                })
+                .response
+                .labelled_by(lab.id);
+        });
         let running = vc.jobs.is_running(JobKind::Explore);
         ui.horizontal(|ui| {
             if ui
@@ -252,6 +277,7 @@ impl SearchPanel {
                             evals_per_sequence: self.evals_per_sequence,
                             seed: self.seed,
                             shard: None,
+                            dsm: self.dsm,
                         })));
                     }
                     _ => {

@@ -1,12 +1,17 @@
 //! Sun view: heliocentric top view (ecliptic J2000, x right, y up) with planet orbits, the
 //! tour's arcs coloured by leg, stop symbols, a scale in AU, hover read-outs and a time slider.
 
-use eframe::egui::{self, Align2, Color32, FontId, Pos2, Sense, Shape, Stroke, Vec2, pos2, vec2};
+use eframe::egui::{
+    self, Align2, Color32, FontId, Pos2, RichText, Sense, Shape, Stroke, Vec2, pos2, vec2,
+};
 
 use tourwright_astro::bodies::Planet;
 use tourwright_astro::constants::AU_KM;
 use tourwright_astro::ephemeris::Ephemeris;
-use tourwright_astro::time::Tdb;
+use tourwright_astro::time::{Epoch, Tdb};
+use tourwright_mission::Edit;
+use tourwright_mission::design::DsmTime;
+use tourwright_mission::evaluate::legs;
 use tourwright_mission::tour::{BodyEphemeris, BodyId, PreparedTour};
 
 use super::action::{Action, Actions};
@@ -38,6 +43,10 @@ pub struct SunView {
     orbits: Option<(OrbitKey, Orbits)>,
     /// How many times the orbit polylines were rebuilt (for tests).
     pub orbit_builds: usize,
+    /// The leg whose deep-space manoeuvre is being dragged.
+    dragging_dsm: Option<usize>,
+    /// Where each manoeuvre marker was drawn last frame (leg, screen position), for hit tests.
+    pub dsm_markers: Vec<(usize, Pos2)>,
 }
 
 impl Default for SunView {
@@ -48,6 +57,8 @@ impl Default for SunView {
             time_frac: 0.0,
             orbits: None,
             orbit_builds: 0,
+            dragging_dsm: None,
+            dsm_markers: Vec::new(),
         }
     }
 }
@@ -193,7 +204,20 @@ impl SunView {
         }
         let scale = (rect.width().min(rect.height()) * 0.5 / (r_max as f32 * 1.05)) * zoom;
         let mut pan = self.pan;
-        if resp.dragged() {
+        // A drag that starts on a manoeuvre marker moves the manoeuvre, not the view.
+        if resp.drag_started() {
+            self.dragging_dsm = resp.interact_pointer_pos().and_then(|p| {
+                self.dsm_markers
+                    .iter()
+                    .filter(|(_, q)| q.distance(p) < 10.0)
+                    .min_by(|a, b| a.1.distance(p).total_cmp(&b.1.distance(p)))
+                    .map(|(k, _)| *k)
+            });
+        }
+        if !resp.dragged() {
+            self.dragging_dsm = None;
+        }
+        if resp.dragged() && self.dragging_dsm.is_none() {
             pan += resp.drag_delta() / scale * vec2(1.0, -1.0);
         }
         if resp.double_clicked() {
@@ -234,6 +258,78 @@ impl SunView {
                 painter.extend(Shape::dashed_line(&pts, stroke, 8.0, 4.0));
             } else {
                 painter.add(Shape::line(pts, stroke));
+            }
+        }
+        // Deep-space manoeuvres: markers, the track a dragged one moves along, the drag itself.
+        self.dsm_markers.clear();
+        if let Some(k) = self.dragging_dsm {
+            let track = legs::coast_track(tour, e, k, 400);
+            let line: Vec<Pos2> = track
+                .iter()
+                .map(|(_, r)| to_screen(r.x / AU_KM, r.y / AU_KM))
+                .collect();
+            painter.extend(Shape::dotted_line(
+                &line,
+                style::leg_color(k).gamma_multiply(0.7),
+                6.0,
+                1.2,
+            ));
+            if let (Some(p), Some(m)) = (resp.interact_pointer_pos(), vc.design.leg(k).dsm) {
+                let nearest = line
+                    .iter()
+                    .enumerate()
+                    .min_by(|a, b| a.1.distance(p).total_cmp(&b.1.distance(p)))
+                    .map(|(i, _)| i);
+                if let Some(i) = nearest {
+                    let (t0, t1) = (tour.stops[k].t, tour.stops[k + 1].t);
+                    let f = ((track[i].0.0 - t0.0) / (t1.0 - t0.0)).clamp(0.005, 0.995);
+                    let mut next = m;
+                    next.at = match m.at {
+                        DsmTime::Fraction(_) => DsmTime::Fraction(f),
+                        DsmTime::Date(old) => DsmTime::Date(Epoch::from_tdb(
+                            Tdb(t0.0 + f * (t1.0 - t0.0)),
+                            old.scale(),
+                        )),
+                    };
+                    if next != m {
+                        out.push(Action::EditLive(Edit::SetDsm {
+                            leg: k,
+                            dsm: Some(next),
+                        }));
+                    }
+                }
+            }
+        }
+        let mut dsm_hover = None;
+        for (k, d) in e.dsms() {
+            let p = to_screen(d.r.x / AU_KM, d.r.y / AU_KM);
+            self.dsm_markers.push((k, p));
+            let col = style::leg_color(k);
+            let r = if self.dragging_dsm == Some(k) {
+                8.0
+            } else {
+                6.0
+            };
+            let diamond = vec![
+                p + vec2(0.0, -r),
+                p + vec2(r, 0.0),
+                p + vec2(0.0, r),
+                p + vec2(-r, 0.0),
+            ];
+            painter.add(Shape::convex_polygon(
+                diamond,
+                col,
+                Stroke::new(1.5, outline_of(dark)),
+            ));
+            painter.text(
+                p + vec2(8.0, -8.0),
+                Align2::LEFT_BOTTOM,
+                format!("DSM {:.3} km/s", d.dv_km_s),
+                FontId::proportional(11.0),
+                col,
+            );
+            if pointer.is_some_and(|q| q.distance(p) < 10.0) {
+                dsm_hover = Some(k);
             }
         }
         // Planets at the slider time, and the spacecraft.
@@ -322,7 +418,29 @@ impl SunView {
                 sc,
             );
         }
-        if let Some((_, k, i)) = hover_best {
+        if let Some(k) = dsm_hover.or(self.dragging_dsm) {
+            if let Some(d) = e.legs.get(k).and_then(|l| l.dsm) {
+                resp.clone().on_hover_ui_at_pointer(|ui| {
+                    ui.label(format!("deep-space manoeuvre, leg {}", k + 1));
+                    ui.label(format!(
+                        "{} · {:.1} % of the leg",
+                        d.t.to_iso_utc(),
+                        d.fraction * 100.0
+                    ));
+                    ui.label(format!("Δv {:.3} km/s", d.dv_km_s));
+                    ui.label(format!(
+                        "distance from the Sun {:.3} AU",
+                        d.sun_distance_au()
+                    ));
+                    ui.label(format!(
+                        "energy {:+.2} km²/s² · mass after {:.0} kg",
+                        d.energy_after - d.energy_before,
+                        d.mass_after_kg
+                    ));
+                    ui.label(RichText::new("drag along the leg to move it").weak());
+                });
+            }
+        } else if let Some((_, k, i)) = hover_best {
             let s = e.samples[i];
             let r = s.state.r.norm() / AU_KM;
             let v = s.state.v.norm();
@@ -335,5 +453,13 @@ impl SunView {
         self.zoom = zoom;
         self.pan = pan;
         out
+    }
+}
+
+fn outline_of(dark: bool) -> Color32 {
+    if dark {
+        Color32::from_gray(20)
+    } else {
+        Color32::WHITE
     }
 }

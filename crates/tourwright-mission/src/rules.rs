@@ -19,6 +19,10 @@ pub const DEFAULT_MAX_POWERED_DV_KM_S: f64 = 1.0;
 /// and of the powered swing-by's periapsis solution), km.
 pub const ALTITUDE_TOLERANCE_KM: f64 = 1e-3;
 
+/// A speed limit (swing-by minimum v∞, powered-Δv limit) this close still counts as met, km/s:
+/// 1 mm/s, the rounding of a search that lands on the limit from either side.
+pub const SPEED_TOLERANCE_KM_S: f64 = 1e-6;
+
 /// The smallest "sphere" a ballistic leg must reach at its next body, km: bodies without a
 /// sphere of influence (massless user bodies) still need a finite target.
 pub const MIN_ARRIVAL_SPHERE_KM: f64 = 1.0e4;

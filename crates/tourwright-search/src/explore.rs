@@ -19,7 +19,9 @@ use tourwright_astro::ephemeris::MeanElements;
 use tourwright_astro::time::Epoch;
 use tourwright_astro::transfer::hohmann;
 use tourwright_mission::Objective;
-use tourwright_mission::design::{LegOptions, MissionDesign, SearchBounds, Stop, TofBounds};
+use tourwright_mission::design::{
+    Dsm, LaunchVinf, LegOptions, MissionDesign, SearchBounds, Stop, SwingbyMode, TofBounds,
+};
 use tourwright_mission::evaluate::evaluate_design;
 
 use crate::job::Progress;
@@ -49,6 +51,39 @@ pub struct ExploreSpec {
     /// Explore only share `k` of `n` (0-based `k`): the sequences whose place in the enumeration
     /// is `k` modulo `n`. Shards of one survey together cover it exactly once.
     pub shard: Option<(usize, usize)>,
+    /// Which legs get a deep-space manoeuvre.
+    pub dsm: DsmPolicy,
+}
+
+/// Which legs of an explored sequence carry a deep-space manoeuvre (MGA-1DSM legs: the swing-by
+/// before such a leg is unpowered and shaped, its altitude and aim searched).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
+pub enum DsmPolicy {
+    /// None: Lambert legs, powered swing-bys within their limit.
+    #[default]
+    None,
+    /// Legs that return to the body they left (Earth-Earth, Venus-Venus): v∞ leveraging.
+    Resonant,
+    /// Every leg.
+    Every,
+}
+
+impl DsmPolicy {
+    /// Every policy with its command-line name and its words.
+    pub const ALL: [(DsmPolicy, &'static str, &'static str); 3] = [
+        (DsmPolicy::None, "none", "no manoeuvres"),
+        (DsmPolicy::Resonant, "resonant", "on resonant legs"),
+        (DsmPolicy::Every, "every", "on every leg"),
+    ];
+
+    /// True when leg `k` of `seq` gets a manoeuvre.
+    pub fn applies(self, seq: &[Planet], k: usize) -> bool {
+        match self {
+            DsmPolicy::None => false,
+            DsmPolicy::Resonant => seq.get(k) == seq.get(k + 1),
+            DsmPolicy::Every => true,
+        }
+    }
 }
 
 /// One ranked sequence.
@@ -198,6 +233,27 @@ pub fn design_for(seq: &[Planet], spec: &ExploreSpec, template: &MissionDesign) 
             epoch: t,
             swingby: Default::default(),
         });
+    }
+    for k in 0..seq.len().saturating_sub(1) {
+        if !spec.dsm.applies(seq, k) {
+            continue;
+        }
+        let mut m = Dsm::at_fraction(0.5);
+        if k == 0 {
+            m.launch = Some(LaunchVinf {
+                vinf_km_s: 3.0,
+                rla_deg: 0.0,
+                dla_deg: 0.0,
+                min_vinf_km_s: None,
+                max_vinf_km_s: None,
+            });
+        } else {
+            d.stops[k].swingby.mode = SwingbyMode::Shaped {
+                altitude_km: 1000.0,
+                aim_deg: 0.0,
+            };
+        }
+        d.legs[k].dsm = Some(m);
     }
     d.search = SearchBounds {
         launch_earliest: Some(spec.launch.0),

@@ -704,6 +704,9 @@ impl Problem {
                     let scale = (s.body.data.radius_km + s.min_altitude_km).max(1.0);
                     *gj * scale <= tourwright_mission::rules::ALTITUDE_TOLERANCE_KM
                 }
+                Constraint::MinVinf { .. } | Constraint::MaxPoweredDv { .. } => {
+                    *gj <= tourwright_mission::rules::SPEED_TOLERANCE_KM_S
+                }
                 _ => *gj <= 1e-9,
             })
     }
@@ -1359,16 +1362,74 @@ pub fn optimize(
         .min_by(|a, b| a.1.total_cmp(&b.1))
         .unwrap_or((p.lo.clone(), f64::INFINITY));
     if !cancelled {
+        let mut work = Workspace::new(p);
+        // A best point that misses a limit by a hair (penalties are soft while searching) is
+        // pushed onto the limit by a compass search on a stiff penalty.
+        if best.1 < 1e8 && !p.feasible(&best.0, &mut work) {
+            let mut g = vec![0.0; p.constraints.len()];
+            let mut stiff = |x: &[f64]| {
+                if progress.is_cancelled() {
+                    return f64::INFINITY;
+                }
+                progress.count_evals(1);
+                let base = p.evaluate_parts(x, &mut work, &mut g);
+                if base >= 1e9 {
+                    return f64::INFINITY;
+                }
+                base + p
+                    .constraints
+                    .iter()
+                    .zip(&g)
+                    .map(|(c, gj)| 1e3 * p.weight(c) * gj.max(0.0))
+                    .sum::<f64>()
+            };
+            let step: Vec<f64> = (0..d)
+                .map(|j| ((p.hi[j] - p.lo[j]) * 1e-4).max(1e-4))
+                .collect();
+            let (x, _, n) = compass_search(&mut stiff, &best.0, &p.lo, &p.hi, &step, 1e-7, 4_000);
+            evals += n as u64;
+            if p.feasible(&x, &mut work) {
+                let mut g = vec![0.0; p.constraints.len()];
+                let base = p.evaluate_parts(&x, &mut work, &mut g);
+                best = (x, p.penalised(base, &g));
+            } else {
+                // Still short: the best point of either phase that meets every limit.
+                let mut pool: Vec<(Vec<f64>, f64)> = chains
+                    .iter()
+                    .map(|c| c.best.clone())
+                    .chain(
+                        islands
+                            .iter()
+                            .flat_map(|isl| isl.pop.iter().cloned().zip(isl.fit.iter().copied())),
+                    )
+                    .filter(|c| c.1 < 1e8)
+                    .collect();
+                pool.sort_by(|a, b| a.1.total_cmp(&b.1));
+                if let Some(c) = pool
+                    .into_iter()
+                    .take(256)
+                    .find(|c| p.feasible(&c.0, &mut work))
+                {
+                    best = c;
+                }
+            }
+        }
+        // Compass polish; once the point meets every limit, it keeps meeting them.
+        let keep_feasible = p.feasible(&best.0, &mut work);
         let step: Vec<f64> = (0..d)
             .map(|j| ((p.hi[j] - p.lo[j]) * 1e-3).max(1e-3))
             .collect();
-        let mut work = Workspace::new(p);
         let mut f = |x: &[f64]| {
             if progress.is_cancelled() {
                 return f64::INFINITY;
             }
             progress.count_evals(1);
-            p.score(x, &mut work)
+            let v = p.score(x, &mut work);
+            if keep_feasible && !p.feasible(x, &mut work) {
+                f64::INFINITY
+            } else {
+                v
+            }
         };
         let (x, fx, n) = compass_search(&mut f, &best.0, &p.lo, &p.hi, &step, 1e-6, 3_000);
         evals += n as u64;

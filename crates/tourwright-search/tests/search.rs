@@ -178,6 +178,7 @@ fn explorer_ranks_a_jupiter_assist_ahead_of_a_mercury_detour_to_saturn() {
         evals_per_sequence: 12_000,
         seed: 3,
         shard: None,
+        dsm: Default::default(),
     };
     let ex = explore::explore(&spec, &MissionDesign::new_blank(), &Progress::new());
     assert_eq!(ex.enumerated, 3);
@@ -293,6 +294,7 @@ fn cancelling_the_explorer_stops_its_inner_optimiser() {
         evals_per_sequence: 50_000_000,
         seed: 1,
         shard: None,
+        dsm: Default::default(),
     };
     let p = Progress::new();
     let p2 = p.clone();
@@ -349,6 +351,7 @@ fn evej_spec(evals: u64) -> ExploreSpec {
         evals_per_sequence: evals,
         seed: 1,
         shard: None,
+        dsm: Default::default(),
     }
 }
 
@@ -396,6 +399,7 @@ fn explorer_ranks_the_voyager_sequence_first_in_its_1977_window() {
         evals_per_sequence: 8_000,
         seed: 1,
         shard: None,
+        dsm: Default::default(),
     };
     let ex = explore::explore(&spec, &MissionDesign::new_blank(), &Progress::new());
     let labels: Vec<&str> = ex.ranked.iter().map(|c| c.label.as_str()).collect();
@@ -625,4 +629,46 @@ fn optimised_manoeuvres_are_written_back_as_evaluated() {
         r.value
     );
     assert!(r.value < 20.0, "{}", r.value);
+}
+
+#[test]
+fn explorer_with_resonant_manoeuvres_ranks_the_earth_leveraging_tour_ahead_of_the_direct_flight() {
+    // A v∞-leveraging Earth-Earth leg (launch, a burn near aphelion, Earth again two years
+    // later) is the classic way to reach Jupiter with a small launch energy; common practice.
+    // Without manoeuvres the Earth-Earth leg cannot pump v∞ and E-E-J is broken or costly; with
+    // a manoeuvre on the resonant leg it beats the direct flight's launch v∞ (C3 ≈ 80 km²/s²).
+    let spec = |dsm| ExploreSpec {
+        from: Planet::Earth,
+        to: Planet::Jupiter,
+        launch: (
+            Epoch::parse("2031-01-01").unwrap(),
+            Epoch::parse("2033-12-31").unwrap(),
+        ),
+        via: vec![Planet::Earth],
+        max_swingbys: 1,
+        max_tof_years: 7.0,
+        objective: Objective::TotalDvWithLaunchVinf,
+        evals_per_sequence: 100_000,
+        seed: 1,
+        shard: None,
+        dsm,
+    };
+    let ex = explore::explore(
+        &spec(explore::DsmPolicy::Resonant),
+        &MissionDesign::new_blank(),
+        &Progress::new(),
+    );
+    let labels: Vec<&str> = ex.ranked.iter().map(|c| c.label.as_str()).collect();
+    assert_eq!(labels, ["E-E-J", "E-J"]);
+    let eej = &ex.ranked[0];
+    assert!(eej.feasible, "{eej:?}");
+    assert!(eej.c3 < 30.0, "C3 {}", eej.c3);
+    let (_, e) = tourwright_mission::evaluate::evaluate_design(&eej.design);
+    assert_eq!(e.dsms().count(), 1, "one manoeuvre, on the Earth-Earth leg");
+    assert!(e.legs[0].dsm.is_some());
+    // No broken limit (the blank template's propellant load is not a limit).
+    assert!(!e.warnings.iter().any(|w| w.is_limit()), "{:?}", e.warnings);
+    // The direct flight's objective is its launch v∞ alone.
+    let ej = &ex.ranked[1];
+    assert!(ej.value > eej.value + 1.0, "{} vs {}", ej.value, eej.value);
 }

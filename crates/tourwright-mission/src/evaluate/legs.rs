@@ -361,3 +361,32 @@ pub fn closest_approach(
     let d = rules::shown(dist(t)?)?;
     Some((d, Tdb(t0.0 + t)))
 }
+
+/// The track a manoeuvre on leg `k` can be moved along: the coast the leg starts with, continued
+/// over the whole leg, as `n` points (epoch, heliocentric position) equally spaced in time. Empty
+/// when the leg has no manoeuvre or the evaluation did not reach it.
+pub fn coast_track(tour: &PreparedTour, e: &Evaluation, k: usize, n: usize) -> Vec<(Tdb, Vec3)> {
+    let solved = e.legs.get(k).is_some_and(|l| l.solved && l.dsm.is_some());
+    if !solved || n < 2 || k + 1 >= tour.stops.len() {
+        return Vec::new();
+    }
+    let t0 = tour.stops[k].t;
+    let tof = tour.stops[k + 1].t.0 - t0.0;
+    let start = State {
+        r: e.stops[k].body_state.r,
+        v: e.stops[k].v_helio_out,
+    };
+    let dt = tof / (n - 1) as f64;
+    let mut cur = start;
+    let mut out = Vec::with_capacity(n);
+    for j in 0..n {
+        if j > 0 {
+            match kepler::propagate(&cur, dt, tour.mu_sun) {
+                Ok(s) => cur = s,
+                Err(_) => break,
+            }
+        }
+        out.push((Tdb(t0.0 + dt * j as f64), cur.r));
+    }
+    out
+}

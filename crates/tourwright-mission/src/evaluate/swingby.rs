@@ -91,14 +91,14 @@ pub fn finish(tour: &PreparedTour, k: usize, out: &mut Evaluation) {
     }
     let stop = &tour.stops[k];
     let v = vin.norm();
-    if v < stop.min_vinf_km_s {
+    if v < stop.min_vinf_km_s - rules::SPEED_TOLERANCE_KM_S {
         out.warnings.push(Warning::VinfBelowMinimum {
             stop: k,
             vinf: v,
             min: stop.min_vinf_km_s,
         });
     }
-    if sw.powered_dv_km_s > stop.max_powered_dv_km_s + 1e-9 {
+    if sw.powered_dv_km_s > stop.max_powered_dv_km_s + rules::SPEED_TOLERANCE_KM_S {
         out.warnings.push(Warning::PoweredDvOverLimit {
             stop: k,
             dv: sw.powered_dv_km_s,
