@@ -291,3 +291,115 @@ fn ephemeris_model_is_chosen_per_command() {
     assert!(!out.status.success());
     assert!(String::from_utf8_lossy(&out.stderr).contains("mga-benchmark"));
 }
+
+#[test]
+fn state_prints_and_writes_planet_states_from_each_source() {
+    // One epoch: J2000 Earth-Moon barycentre from the mean elements, near 1 AU (0.983 AU early in
+    // January: perihelion; common practice).
+    let out = bin()
+        .args(["state", "Earth", "--at", "2000-01-01T12:00:00 TDB"])
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    let row = text.lines().find(|l| l.starts_with("2000-01-01")).unwrap();
+    let f: Vec<f64> = row.split(',').skip(2).map(|x| x.parse().unwrap()).collect();
+    let r_au = (f[0] * f[0] + f[1] * f[1] + f[2] * f[2]).sqrt() / 149_597_870.7;
+    assert!((r_au - 0.9833).abs() < 0.001, "{r_au}");
+    // A range with a step, to CSV, in the benchmark model.
+    let dir = tempfile::tempdir().unwrap();
+    let csv = dir.path().join("mars.csv");
+    let out = bin()
+        .args([
+            "state",
+            "Mars",
+            "--at",
+            "2030-01-01..2030-12-31",
+            "--step",
+            "30",
+            "--ephemeris",
+            "mga-benchmark",
+            "--csv",
+        ])
+        .arg(&csv)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = std::fs::read_to_string(&csv).unwrap();
+    assert_eq!(text.lines().count(), 1 + 13);
+    // A kernel that is not there: a clear error naming it.
+    let out = bin()
+        .args(["state", "Mars", "--at", "2030-01-01", "--ephemeris"])
+        .arg(format!(
+            "kernel:{}",
+            dir.path().join("missing.bsp").display()
+        ))
+        .output()
+        .unwrap();
+    assert!(!out.status.success());
+    let err = String::from_utf8(out.stderr).unwrap();
+    assert!(err.contains("missing.bsp"), "{err}");
+    // With DE421 (CI): Mars from the kernel and from the mean elements agree to the table's
+    // accuracy (well under 0.001 AU at 2030).
+    if let Some(k) = std::env::var_os("TOURWRIGHT_DE421") {
+        let pick = |eph: &str| -> Vec<f64> {
+            let out = bin()
+                .args(["state", "Mars", "--at", "2030-01-01", "--ephemeris", eph])
+                .output()
+                .unwrap();
+            assert!(
+                out.status.success(),
+                "{}",
+                String::from_utf8_lossy(&out.stderr)
+            );
+            let t = String::from_utf8(out.stdout).unwrap();
+            let row = t
+                .lines()
+                .find(|l| l.starts_with("2030"))
+                .unwrap()
+                .to_string();
+            row.split(',').skip(2).map(|x| x.parse().unwrap()).collect()
+        };
+        let a = pick(&format!("kernel:{}", k.to_string_lossy()));
+        let b = pick("mean-elements");
+        let d = ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt();
+        assert!(d < 0.001 * 149_597_870.7, "{d} km");
+    }
+}
+
+#[test]
+fn fidelity_reports_every_encounter_in_text_and_json() {
+    let out = bin()
+        .args(["fidelity"])
+        .arg(sample("tern-saturn-ejs.tour.ron"))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("B·T") && text.contains("Saturn") && text.contains("Preliminary"));
+    let out = bin()
+        .args(["fidelity", "--json"])
+        .arg(sample("tern-saturn-ejs.tour.ron"))
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let enc = v["encounters"].as_array().unwrap();
+    assert_eq!(enc.len(), 2);
+    for c in enc {
+        assert!(c["miss_km"].as_f64().unwrap().is_finite());
+        assert!(c["correction_dv_km_s"].as_f64().is_some(), "{c}");
+    }
+}

@@ -671,3 +671,195 @@ fn add_a_manoeuvre_drag_it_along_the_leg_and_undo() {
     assert!(h.state().design().leg(0).dsm.is_none());
     assert_ledger_matches(&h, "after removing the manoeuvre");
 }
+
+/// The n-body check from the Fidelity tab: the button starts a job (progress shown), the table
+/// fills in, and the Sun view draws the n-body arcs over the patched-conic ones.
+#[test]
+fn fidelity_check_runs_from_its_tab_and_draws_the_arcs() {
+    let mut h = harness(0);
+    h.get_by_label("Fidelity").click();
+    h.run_steps(3);
+    h.get_by_label("Run n-body check").click();
+    h.run_steps(2);
+    let t = std::time::Instant::now();
+    while h.state().jobs.fidelity.is_none() && t.elapsed().as_secs() < 120 {
+        h.step();
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    let f = &h
+        .state()
+        .jobs
+        .fidelity
+        .as_ref()
+        .expect("the check finished")
+        .value;
+    let legs = h.state().design().stops.len() - 1;
+    assert_eq!(f.encounters.len(), legs);
+    assert!(f.encounters.iter().all(|c| c.miss_km.is_finite()));
+    h.run_steps(2);
+    h.get_by_label("miss (km)");
+    h.get_by_label("Sun view").click();
+    h.run_steps(3);
+    assert_eq!(h.state().views.sun.nbody_arcs_drawn, legs);
+}
+
+/// Choosing a kernel that cannot be used (here: not an SPK file, typed into the path prompt)
+/// leaves the design as it was and says why.
+#[test]
+fn a_bad_kernel_is_refused_and_the_design_stays() {
+    let dir = tempfile::tempdir().unwrap();
+    let bogus = dir.path().join("bogus.bsp");
+    std::fs::write(&bogus, "not a kernel\n".repeat(200)).unwrap();
+    let mut h = harness(0);
+    let before = h.state().design().clone();
+    h.get_by_role_and_label(Role::ComboBox, "Ephemeris").click();
+    h.run_steps(2);
+    h.get_by_label("JPL kernel (SPK file)…").click();
+    h.run_steps(3);
+    let (purpose, _) = h.state().dialogs.path_prompt.clone().expect("path prompt");
+    assert_eq!(purpose, tourwright::gui::action::PathPurpose::Kernel);
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::PathChosen(
+            purpose,
+            bogus.clone(),
+        ));
+    h.run_steps(3);
+    assert_eq!(*h.state().design(), before, "the design changed");
+    let err = h.state().dialogs.error.clone().expect("an error is shown");
+    assert!(err.contains("bogus.bsp") && err.contains("SPK"), "{err}");
+    // With DE421 at hand (CI), the same path switches the model and the status bar shows it.
+    if let Some(k) = std::env::var_os("TOURWRIGHT_DE421") {
+        h.state_mut().dialogs.error = None;
+        let c3_before = h.state().eval.launch.c3;
+        h.state_mut()
+            .apply(tourwright::gui::action::Action::PathChosen(
+                tourwright::gui::action::PathPurpose::Kernel,
+                PathBuf::from(k),
+            ));
+        h.run_steps(3);
+        assert!(h.state().dialogs.error.is_none());
+        h.get_by_label("ephemeris: JPL kernel de421.bsp");
+        assert!((h.state().eval.launch.c3 - c3_before).abs() > 1e-6);
+    }
+}
+
+/// The Tisserand graph tab: contours from the engine for the ticked planets, the design's arcs,
+/// a planet ticked off redraws; the CLI writes the same contours.
+#[test]
+fn tisserand_graph_shows_contours_and_the_design() {
+    let mut h = harness(0);
+    h.get_by_label("Tisserand graph").click();
+    h.run_steps(3);
+    let builds = h.state().views.tisserand.builds;
+    assert!(builds >= 1);
+    assert!(h.query_all_by_label("Venus").count() >= 1);
+    // The planet row's box comes first (the legend has a "Mars" entry too).
+    h.query_all_by_role_and_label(Role::CheckBox, "Mars")
+        .next()
+        .unwrap()
+        .click();
+    h.run_steps(3);
+    assert!(h.state().views.tisserand.builds > builds);
+    assert!(
+        !h.state()
+            .views
+            .tisserand
+            .bodies
+            .contains(&tourwright::astro::bodies::Planet::Mars)
+    );
+    // What the view shows is what the CLI writes.
+    let view = h.state().views.tisserand.bodies.clone();
+    let levels = tourwright::gui::tisserand::parse_levels(&h.state().views.tisserand.levels_text);
+    let shown = tourwright::astro::tisserand::contours_for(
+        &h.state().tour.as_ref().unwrap().model,
+        &view,
+        &levels,
+        tourwright::gui::tisserand::POINTS,
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let csv = dir.path().join("t.csv");
+    let letters: Vec<&str> = view.iter().map(|p| p.name()).collect();
+    let vinfs: Vec<String> = levels.iter().map(|v| v.to_string()).collect();
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_tourwright"))
+        .args([
+            "tisserand",
+            "--bodies",
+            &letters.join(","),
+            "--vinf",
+            &vinfs.join(","),
+            "--csv",
+        ])
+        .arg(&csv)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert_eq!(
+        std::fs::read_to_string(&csv).unwrap(),
+        tourwright::astro::tisserand::contours_csv(&shown)
+    );
+}
+
+/// Work that survives: an edit is autosaved; the app is dropped without a clean exit; a new app
+/// offers the recovery and restores the same design. A clean exit leaves nothing behind; an
+/// interrupted write leaves the previous autosave readable.
+#[test]
+fn autosave_survives_an_unclean_exit_and_a_clean_exit_leaves_nothing() {
+    use tourwright::gui::autosave::Autosave;
+    let dir = tempfile::tempdir().unwrap();
+    let auto = dir.path().join("autosave");
+    let (mut h, file) = harness_on_copy(0, dir.path());
+    let on_disk = std::fs::read_to_string(&file).unwrap();
+    let mut a = Autosave::in_dir(&auto);
+    a.delay = std::time::Duration::ZERO;
+    h.state_mut().enable_autosave(Some(a));
+    assert!(h.state().dialogs.recovery.is_empty());
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::SetName(
+            "Edited in a crash".into(),
+        )));
+    h.run_steps(3);
+    let edited = h.state().design().clone();
+    let saved = h.state().autosave.as_ref().unwrap().file();
+    assert!(saved.is_file(), "no autosave written");
+    // An interrupted later write (the temporary file half written, never renamed) leaves the
+    // autosave readable as it was.
+    std::fs::write(saved.with_extension("tmp"), "(format: \"tourwri").unwrap();
+    assert_eq!(files::load(&saved).unwrap(), edited);
+    drop(h); // no clean exit
+    assert_eq!(
+        std::fs::read_to_string(&file).unwrap(),
+        on_disk,
+        "the design file was touched"
+    );
+    // A new workbench offers it and restores it.
+    let mut app = TourwrightApp::on_sample(1);
+    app.native_dialogs = false;
+    app.enable_autosave(Some(Autosave::in_dir(&auto)));
+    let mut h = harness_for(app);
+    assert_eq!(h.state().dialogs.recovery.len(), 1);
+    h.get_by_label("Restore Edited in a crash").click();
+    h.run_steps(3);
+    assert_eq!(*h.state().design(), edited);
+    assert_eq!(h.state().doc.path.as_deref(), Some(file.as_path()));
+    assert!(h.state().doc.is_dirty(), "restored work is not saved yet");
+    assert!(h.state().dialogs.recovery.is_empty());
+    // Saving clears the autosave; a clean exit leaves none behind.
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::SetName(
+            "Again".into(),
+        )));
+    h.state_mut().autosave.as_mut().unwrap().delay = std::time::Duration::ZERO;
+    h.run_steps(3);
+    h.state_mut().clean_exit();
+    let left: Vec<_> = std::fs::read_dir(&auto)
+        .unwrap()
+        .flatten()
+        .map(|e| e.file_name())
+        .filter(|n| n.to_string_lossy().ends_with(".tour.ron"))
+        .collect();
+    assert!(left.is_empty(), "{left:?}");
+}

@@ -8,8 +8,11 @@ mod dsm;
 mod eval;
 mod explore;
 mod export;
+mod fidelity;
 mod optimize;
 mod retarget;
+mod state;
+mod tisserand;
 mod window;
 
 use std::path::{Path, PathBuf};
@@ -79,8 +82,63 @@ pub enum Command {
     Eval {
         /// Design file.
         file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: the design's.
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
+        /// Machine-readable JSON instead of text.
+        #[arg(long)]
+        json: bool,
+    },
+    /// Heliocentric ecliptic J2000 states of a planet from an ephemeris source (km, km/s).
+    State {
+        /// Planet (name or letter).
+        body: String,
+        /// Epoch, or START..END with --step.
+        #[arg(long)]
+        at: String,
+        /// Step between rows for a range, days.
+        #[arg(long)]
+        step: Option<f64>,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: mean-elements.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
+        /// Write CSV here instead of printing.
+        #[arg(long)]
+        csv: Option<PathBuf>,
+    },
+    /// Tisserand graph: v∞ contours of planets on (periapsis, apoapsis) radius, and a design's
+    /// arcs on them, as CSV.
+    Tisserand {
+        /// Planets, comma-separated letters or names (V,E,J).
+        #[arg(long)]
+        bodies: String,
+        /// v∞ levels, km/s, comma-separated (3,5,7,9).
+        #[arg(long)]
+        vinf: String,
+        /// A design whose arcs are added as rows ("design leg K").
+        #[arg(long)]
+        design: Option<PathBuf>,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
+        #[arg(long, value_parser = EphemerisChoice::parse)]
+        ephemeris: Option<EphemerisChoice>,
+        /// Write CSV here instead of printing.
+        #[arg(long)]
+        csv: Option<PathBuf>,
+    },
+    /// n-body check of a design: per encounter the miss, its B-plane components, the change in
+    /// v∞ and the departure correction that removes the miss.
+    Fidelity {
+        /// Design file.
+        file: PathBuf,
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
         /// Machine-readable JSON instead of text.
@@ -91,8 +149,9 @@ pub enum Command {
     Compare {
         /// Design file.
         file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: the design's.
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
         /// Ranking measure (default: mass when the design has a launch vehicle, else dv).
@@ -127,8 +186,9 @@ pub enum Command {
         /// Departure body (or take it from --design and --leg).
         #[arg(long)]
         from: Option<String>,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: the design's.
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
         /// Arrival body.
@@ -166,8 +226,9 @@ pub enum Command {
     Retarget {
         /// Design file.
         file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: the design's.
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
         /// Stop number (1-based) of the shaped swing-by.
@@ -205,8 +266,9 @@ pub enum Command {
     Optimize {
         /// Design file.
         file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: the design's.
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
+        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
         /// Seed (the same seed and budget give the same answer).
@@ -260,8 +322,9 @@ pub enum Command {
         /// Seed.
         #[arg(long, default_value_t = 1)]
         seed: u64,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050) or mga-benchmark
-        /// (the MGA benchmark set's analytic model); default: mean-elements.
+        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
+        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel) or kernel
+        /// (TOURWRIGHT_KERNEL); default: mean-elements.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
         /// Deep-space manoeuvres on explored legs (MGA-1DSM).
@@ -336,6 +399,25 @@ pub fn run(cmd: Command) -> CliResult {
             branch,
             csv,
         }),
+        Command::State {
+            body,
+            at,
+            step,
+            ephemeris,
+            csv,
+        } => state::run(&body, &at, step, ephemeris, csv.as_deref()),
+        Command::Tisserand {
+            bodies,
+            vinf,
+            design,
+            ephemeris,
+            csv,
+        } => tisserand::run(&bodies, &vinf, design.as_deref(), ephemeris, csv.as_deref()),
+        Command::Fidelity {
+            file,
+            ephemeris,
+            json,
+        } => fidelity::run(&file, ephemeris, json),
         Command::Retarget {
             file,
             ephemeris,

@@ -23,16 +23,22 @@ pub enum View {
     Direct,
     /// Porkchop view.
     Window,
+    /// The Tisserand graph.
+    Tisserand,
+    /// The n-body fidelity check.
+    Fidelity,
 }
 
 impl View {
     /// All views in tab order.
-    pub const ALL: [View; 5] = [
+    pub const ALL: [View; 7] = [
         View::Sun,
         View::Lens,
         View::Ladder,
         View::Direct,
         View::Window,
+        View::Tisserand,
+        View::Fidelity,
     ];
 
     /// Tab title.
@@ -43,6 +49,8 @@ impl View {
             View::Ladder => "Energy ladder",
             View::Direct => "Direct vs assist",
             View::Window => "Window map",
+            View::Tisserand => "Tisserand graph",
+            View::Fidelity => "Fidelity",
         }
     }
 }
@@ -79,6 +87,8 @@ pub enum PathPurpose {
     Oem,
     /// Save a picture of the current view.
     Picture,
+    /// Choose a JPL SPK kernel as the design's ephemeris.
+    Kernel,
 }
 
 impl PathPurpose {
@@ -118,6 +128,8 @@ pub enum JobKind {
     Optimize,
     /// Sequence explorer.
     Explore,
+    /// n-body fidelity check.
+    Fidelity,
 }
 
 impl JobKind {
@@ -128,6 +140,7 @@ impl JobKind {
             JobKind::Window => "window map",
             JobKind::Optimize => "date optimiser",
             JobKind::Explore => "sequence explorer",
+            JobKind::Fidelity => "n-body check",
         }
     }
 }
@@ -143,11 +156,15 @@ pub enum JobRequest {
     Optimize(OptimizeOptions, tourwright_mission::Objective),
     /// Explore sequences.
     Explore(ExploreSpec),
+    /// Run the n-body fidelity check.
+    Fidelity,
 }
 
 /// Everything the workbench can be asked to do.
 #[derive(Clone, Debug)]
 pub enum Action {
+    /// Restore (true) or discard (false) the autosave at this index of the recovery list.
+    Recover(usize, bool),
     /// A change to the design: one undo step.
     Edit(Edit),
     /// A change within the current gesture (one undo step when the gesture ends).

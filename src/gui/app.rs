@@ -102,6 +102,10 @@ pub struct Views {
     pub window: WindowView,
     /// Search panel.
     pub search: SearchPanel,
+    /// n-body fidelity check.
+    pub fidelity: super::fidelity::FidelityView,
+    /// Tisserand graph.
+    pub tisserand: super::tisserand::TisserandView,
 }
 
 /// The workbench.
@@ -138,6 +142,8 @@ pub struct TourwrightApp {
     pub shot_result: Arc<Mutex<Option<String>>>,
     theme_applied: Option<bool>,
     last_title: String,
+    /// The autosave of the open document (off in tests unless set).
+    pub autosave: Option<super::autosave::Autosave>,
 }
 
 impl TourwrightApp {
@@ -164,6 +170,7 @@ impl TourwrightApp {
             shot_result: Arc::new(Mutex::new(None)),
             theme_applied: None,
             last_title: String::new(),
+            autosave: None,
         };
         app.document_opened();
         app
@@ -175,8 +182,31 @@ impl TourwrightApp {
         TourwrightApp::with_design(d, p, Settings::default())
     }
 
-    /// Start from the command line's file, the last file opened, or a sample.
+    /// Start from the command line's file, the last file opened, or a sample; autosave on, and
+    /// any autosave left by a workbench that ended uncleanly offered for recovery.
     pub fn new(cc: &eframe::CreationContext<'_>, file: Option<PathBuf>) -> Self {
+        let mut app = Self::start(cc, file);
+        app.enable_autosave(super::autosave::Autosave::platform());
+        super::autosave::install_panic_hook();
+        app
+    }
+
+    /// Turn autosave on in `a`'s folder and offer what an unclean exit left there.
+    pub fn enable_autosave(&mut self, a: Option<super::autosave::Autosave>) {
+        if let Some(a) = &a {
+            self.dialogs.recovery = super::autosave::Autosave::orphans(a.dir());
+        }
+        self.autosave = a;
+    }
+
+    /// A clean exit: the autosave is not needed any more.
+    pub fn clean_exit(&mut self) {
+        if let Some(a) = &mut self.autosave {
+            a.clear();
+        }
+    }
+
+    fn start(cc: &eframe::CreationContext<'_>, file: Option<PathBuf>) -> Self {
         let settings: Settings = cc
             .storage
             .and_then(|s| eframe::get_value(s, "tourwright.settings"))
@@ -215,6 +245,9 @@ impl TourwrightApp {
     /// and their results will not be applied to the new design.
     pub fn set_document(&mut self, d: MissionDesign, p: Option<PathBuf>) {
         self.jobs.cancel_all();
+        if let Some(a) = &mut self.autosave {
+            a.clear();
+        }
         self.doc = Document::new(d, p);
         self.document_opened();
         self.status = Some((format!("opened {}", self.doc.design().name), false));
@@ -353,6 +386,30 @@ impl TourwrightApp {
                 SettingsChange::View(v) => self.settings.view = v,
             },
             Action::ShowHelp(t) => self.dialogs.help = Some(t),
+            Action::Recover(i, restore) => {
+                if i < self.dialogs.recovery.len() {
+                    let r = self.dialogs.recovery.remove(i);
+                    if restore {
+                        match tourwright_mission::files::load(&r.file) {
+                            Ok(d) => {
+                                self.jobs.cancel_all();
+                                if let Some(a) = &mut self.autosave {
+                                    a.clear();
+                                }
+                                self.doc = Document::recovered(d, r.original.clone());
+                                self.document_opened();
+                                self.status =
+                                    Some((format!("restored {} (not saved yet)", r.name), false));
+                            }
+                            Err(e) => {
+                                self.dialogs.error =
+                                    Some(format!("The autosave could not be read.\n\n{e}"))
+                            }
+                        }
+                    }
+                    super::autosave::Autosave::discard(&r);
+                }
+            }
             Action::CloseHelp => self.dialogs.help = None,
             Action::DismissError => self.dialogs.error = None,
             Action::Status(m, e) => self.status = Some((m, e)),
@@ -465,6 +522,8 @@ impl TourwrightApp {
                     View::Ladder => views.ladder.ui(ui, &vc),
                     View::Direct => views.direct.ui(ui, &vc),
                     View::Window => views.window.ui(ui, &vc),
+                    View::Tisserand => views.tisserand.ui(ui, &vc),
+                    View::Fidelity => views.fidelity.ui(ui, &vc),
                 });
             });
             actions.extend(self.dialogs.ui(&ctx, &vc, self.frame_ms));
@@ -478,6 +537,15 @@ impl TourwrightApp {
             self.apply(a);
         }
         self.refresh();
+        if let Some(a) = &mut self.autosave {
+            let (rev, dirty) = (self.doc.revision(), self.doc.is_dirty());
+            if let Err(e) = a.tick(self.doc.design(), self.doc.path.as_deref(), rev, dirty) {
+                self.status = Some((format!("autosave failed: {e}"), true));
+            }
+            if a.pending_write() {
+                ctx.request_repaint_after(a.delay);
+            }
+        }
         if let Some(t) = self.dialogs.clipboard.take() {
             ctx.copy_text(t);
         }
@@ -544,5 +612,9 @@ impl eframe::App for TourwrightApp {
 
     fn save(&mut self, storage: &mut dyn eframe::Storage) {
         eframe::set_value(storage, "tourwright.settings", &self.settings);
+    }
+
+    fn on_exit(&mut self, _gl: Option<&eframe::glow::Context>) {
+        self.clean_exit();
     }
 }

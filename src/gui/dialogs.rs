@@ -23,6 +23,8 @@ pub struct Dialogs {
     pub clipboard: Option<String>,
     /// What to do once a save that is waiting for a path has succeeded.
     pub after_save: Option<Pending>,
+    /// Autosaves an unclean exit left, offered for recovery.
+    pub recovery: Vec<super::autosave::Recovered>,
 }
 
 impl Dialogs {
@@ -59,12 +61,45 @@ impl Dialogs {
                 });
             });
         }
+        if !self.recovery.is_empty() {
+            egui::Modal::new(egui::Id::unique("recovery")).show(ctx, |ui| {
+                ui.set_max_width(620.0);
+                ui.heading("Restore unsaved work?");
+                ui.label(
+                    "The workbench did not close cleanly last time. These designs were saved \
+                     automatically:",
+                );
+                egui::Grid::new("recovery-grid")
+                    .num_columns(5)
+                    .striped(true)
+                    .show(ui, |ui| {
+                        for (i, r) in self.recovery.iter().enumerate() {
+                            ui.label(egui::RichText::new(&r.name).strong());
+                            ui.label(&r.saved_at);
+                            ui.label(
+                                r.original
+                                    .as_ref()
+                                    .map(|p| p.display().to_string())
+                                    .unwrap_or_else(|| "(never saved)".into()),
+                            );
+                            if ui.button(format!("Restore {}", r.name)).clicked() {
+                                out.push(Action::Recover(i, true));
+                            }
+                            if ui.button(format!("Discard {}", r.name)).clicked() {
+                                out.push(Action::Recover(i, false));
+                            }
+                            ui.end_row();
+                        }
+                    });
+            });
+        }
         if let Some((purpose, text)) = &mut self.path_prompt {
             let purpose = *purpose;
             egui::Modal::new(egui::Id::unique("path")).show(ctx, |ui| {
                 ui.heading(match purpose {
                     PathPurpose::Open => "Open a design file",
                     PathPurpose::SaveAs => "Save the design as",
+                    PathPurpose::Kernel => "Use a JPL SPK kernel (.bsp)",
                     _ => "Export to",
                 });
                 let lab = ui.label("Type a path (no native file dialog is in use):");

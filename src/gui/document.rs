@@ -49,6 +49,14 @@ impl Document {
         }
     }
 
+    /// A document restored from an autosave: it belongs to `path` (when it had one) but differs
+    /// from it until saved.
+    pub fn recovered(design: MissionDesign, path: Option<PathBuf>) -> Self {
+        let mut d = Document::new(design, path);
+        d.saved = None;
+        d
+    }
+
     /// The design as it is now.
     pub fn design(&self) -> &MissionDesign {
         &self.design

@@ -82,6 +82,9 @@ pub fn save_to(app: &mut TourwrightApp, p: &Path) {
     match files::save(app.doc.design(), p) {
         Ok(()) => {
             app.doc.mark_saved(p.to_path_buf());
+            if let Some(a) = &mut app.autosave {
+                a.clear();
+            }
             remember(app, p);
             app.status = Some((format!("saved {}", p.display()), false));
         }
@@ -95,7 +98,43 @@ pub fn use_path(app: &mut TourwrightApp, purpose: PathPurpose, p: &Path) {
         PathPurpose::Open => open_path(app, p),
         PathPurpose::SaveAs => save_to(app, p),
         PathPurpose::Picture => app.request_picture(p.to_path_buf()),
+        PathPurpose::Kernel => use_kernel(app, p),
         other => export_to(app, other, p),
+    }
+}
+
+/// Make a kernel file the design's ephemeris source: written relative to the design's folder
+/// when it lies inside it, else as given. A kernel that cannot be used is refused with its
+/// reason and the design stays as it was.
+pub fn use_kernel(app: &mut TourwrightApp, p: &Path) {
+    let folder = app
+        .doc
+        .path
+        .as_ref()
+        .and_then(|d| d.parent())
+        .map(Path::to_path_buf);
+    let abs = p.canonicalize().unwrap_or_else(|_| p.to_path_buf());
+    let written = folder
+        .as_ref()
+        .and_then(|f| f.canonicalize().ok())
+        .and_then(|f| abs.strip_prefix(&f).ok().map(Path::to_path_buf))
+        .unwrap_or_else(|| p.to_path_buf());
+    let choice = tourwright_mission::design::EphemerisChoice::Kernel(
+        tourwright_mission::design::KernelRef {
+            path: written.to_string_lossy().into_owned(),
+            base: folder.filter(|_| written.is_relative()),
+        },
+    );
+    match app
+        .doc
+        .apply(tourwright_mission::Edit::SetEphemeris(choice))
+    {
+        Ok(()) => app.status = Some((format!("ephemeris: kernel {}", p.display()), false)),
+        Err(e) => {
+            app.dialogs.error = Some(format!(
+                "The kernel cannot be used; the design is unchanged.\n\n{e}"
+            ))
+        }
     }
 }
 
@@ -120,7 +159,9 @@ pub fn export_to(app: &mut TourwrightApp, purpose: PathPurpose, p: &Path) {
             }
             export::oem(tour, e, tourwright_astro::time::Epoch::now())
         }
-        PathPurpose::Open | PathPurpose::SaveAs | PathPurpose::Picture => return,
+        PathPurpose::Open | PathPurpose::SaveAs | PathPurpose::Picture | PathPurpose::Kernel => {
+            return;
+        }
     };
     match std::fs::write(p, text) {
         Ok(()) => app.status = Some((format!("wrote {}", p.display()), false)),
@@ -144,9 +185,10 @@ pub fn ask_path(app: &mut TourwrightApp, purpose: PathPurpose) {
         }
         PathPurpose::Oem => base.add_filter("CCSDS OEM", &["oem", "txt"]),
         PathPurpose::Picture => base.add_filter("PNG picture", &["png"]),
+        PathPurpose::Kernel => base.add_filter("SPICE SPK kernel", &["bsp"]),
     };
     let chosen = match purpose {
-        PathPurpose::Open => dlg.pick_file(),
+        PathPurpose::Open | PathPurpose::Kernel => dlg.pick_file(),
         _ => dlg
             .set_file_name(
                 Path::new(&name)
@@ -193,6 +235,11 @@ fn default_path(app: &TourwrightApp, purpose: PathPurpose) -> String {
         .unwrap_or_else(|| PathBuf::from("."));
     let file = match purpose {
         PathPurpose::Open => return dir.to_string_lossy().to_string() + "/",
+        PathPurpose::Kernel => {
+            return tourwright_astro::kernel::default_kernel()
+                .map(|k| k.to_string_lossy().into_owned())
+                .unwrap_or_else(|| dir.join("de421.bsp").to_string_lossy().into_owned());
+        }
         PathPurpose::SaveAs => format!("{stem}.tour.ron"),
         PathPurpose::EventsCsv => format!("{stem}-events.csv"),
         PathPurpose::LedgerCsv => format!("{stem}-ledger.csv"),

@@ -5,7 +5,9 @@
 
 use std::sync::Arc;
 
-use tourwright_mission::MissionDesign;
+use tourwright_mission::evaluate::{EvalOptions, evaluate};
+use tourwright_mission::fidelity::{self, Fidelity, FidelityOptions};
+use tourwright_mission::{MissionDesign, PreparedTour};
 use tourwright_search::direct::{self, DirectComparison};
 use tourwright_search::explore::{self, Exploration};
 use tourwright_search::optimize::{self, OptimizeResult, Problem};
@@ -19,6 +21,7 @@ enum Handle {
     Window(Job<Result<WindowMap, String>>),
     Optimize(Job<Result<OptimizeResult, String>>),
     Explore(Job<Exploration>),
+    Fidelity(Job<Result<Fidelity, String>>),
 }
 
 impl Handle {
@@ -28,6 +31,7 @@ impl Handle {
             Handle::Window(j) => &j.progress,
             Handle::Optimize(j) => &j.progress,
             Handle::Explore(j) => &j.progress,
+            Handle::Fidelity(j) => &j.progress,
         }
     }
 }
@@ -70,6 +74,8 @@ pub struct Jobs {
     pub optimum: Option<ForRevision<OptimizeResult>>,
     /// The latest exploration.
     pub exploration: Option<Exploration>,
+    /// The latest n-body fidelity check.
+    pub fidelity: Option<ForRevision<Fidelity>>,
     /// A window map waiting to be shown.
     pub window: Option<WindowMap>,
     /// Results dropped because they belonged to another document.
@@ -110,6 +116,7 @@ impl Jobs {
             JobRequest::Window(_) => JobKind::Window,
             JobRequest::Optimize(..) => JobKind::Optimize,
             JobRequest::Explore(_) => JobKind::Explore,
+            JobRequest::Fidelity => JobKind::Fidelity,
         };
         self.cancel(kind);
         let d = design.clone();
@@ -131,6 +138,21 @@ impl Jobs {
                 let mut template = d;
                 template.user_bodies.clear();
                 explore::explore(&spec, &template, &p)
+            })),
+            JobRequest::Fidelity => Handle::Fidelity(Job::spawn(label, move |p| {
+                let tour = PreparedTour::prepare(&d).map_err(|e| e.to_string())?;
+                let mut e = tourwright_mission::evaluate::Evaluation::default();
+                evaluate(&tour, &EvalOptions::default(), &mut e);
+                p.set_total(1000);
+                let done = |f: f64| {
+                    let now = (f * 1000.0) as u64;
+                    let was = (p.fraction() * 1000.0).round() as u64;
+                    p.add(now.saturating_sub(was));
+                };
+                fidelity::check(&tour, &e, &FidelityOptions::default(), &done, &|| {
+                    p.is_cancelled()
+                })
+                .map_err(|e| e.to_string())
             })),
         };
         self.running.push(Running {
@@ -158,6 +180,7 @@ impl Jobs {
         self.direct = None;
         self.optimum = None;
         self.window = None;
+        self.fidelity = None;
     }
 
     /// Collect finished jobs. Results for another document generation are dropped.
@@ -221,6 +244,24 @@ impl Jobs {
                         Some(Ok(()))
                     }
                     JobStatus::Failed(m) => Some(Err(m)),
+                },
+                Handle::Fidelity(j) => match j.poll() {
+                    JobStatus::Running => None,
+                    JobStatus::Done(Ok(f)) => {
+                        if current {
+                            let worst = f.encounters.iter().map(|c| c.miss_km).fold(0.0, f64::max);
+                            out.push(Finished::Message(
+                                format!("n-body check finished: largest miss {worst:.0} km"),
+                                false,
+                            ));
+                            self.fidelity = Some(ForRevision {
+                                value: f,
+                                revision: r.revision,
+                            });
+                        }
+                        Some(Ok(()))
+                    }
+                    JobStatus::Done(Err(m)) | JobStatus::Failed(m) => Some(Err(m)),
                 },
             };
             match status {

@@ -9,9 +9,11 @@
 
 pub mod action;
 pub mod app;
+pub mod autosave;
 pub mod compare;
 pub mod dialogs;
 pub mod document;
+pub mod fidelity;
 pub mod files;
 pub mod jobs;
 pub mod ladder;
@@ -23,6 +25,7 @@ pub mod shared;
 pub mod status;
 pub mod style;
 pub mod sun;
+pub mod tisserand;
 pub mod windowmap;
 
 use std::path::PathBuf;

@@ -13,7 +13,7 @@ use tourwright_mission::evaluate::StopKind;
 use tourwright_mission::report::{self, EVENT_COLUMNS, LEDGER_VIEW_COLUMNS};
 use tourwright_mission::{Edit, MissionDesign, rules};
 
-use super::action::{Action, Actions};
+use super::action::{Action, Actions, PathPurpose};
 use super::app::ViewCtx;
 use super::{shared, style};
 
@@ -66,6 +66,18 @@ impl TourPanel {
                     for (_, c) in EphemerisChoice::NAMED {
                         ui.selectable_value(&mut choice, c.clone(), c.label());
                     }
+                    if ui
+                        .selectable_label(
+                            matches!(d.ephemeris, EphemerisChoice::Kernel(_)),
+                            "JPL kernel (SPK file)…",
+                        )
+                        .on_hover_text(
+                            "A JPL development ephemeris such as de421.bsp or de440s.bsp",
+                        )
+                        .clicked()
+                    {
+                        out.push(Action::Export(PathPurpose::Kernel));
+                    }
                 })
                 .response
                 .labelled_by(lab.id);
@@ -73,6 +85,25 @@ impl TourPanel {
                 out.push(Action::Edit(Edit::SetEphemeris(choice)));
             }
         });
+        if let EphemerisChoice::Kernel(k) = &d.ephemeris {
+            ui.horizontal(|ui| {
+                ui.label("Kernel");
+                let shown = if k.path.is_empty() {
+                    "(default kernel of the settings)".to_string()
+                } else {
+                    k.path.clone()
+                };
+                ui.label(egui::RichText::new(shown).monospace())
+                    .on_hover_text(
+                        k.resolved()
+                            .map(|p| p.display().to_string())
+                            .unwrap_or_else(|| "no default kernel set".into()),
+                    );
+                if ui.small_button("change…").clicked() {
+                    out.push(Action::Export(PathPurpose::Kernel));
+                }
+            });
+        }
         ui.add_space(4.0);
         let n = d.stops.len();
         let names = d.body_names();

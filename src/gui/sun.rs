@@ -47,6 +47,8 @@ pub struct SunView {
     dragging_dsm: Option<usize>,
     /// Where each manoeuvre marker was drawn last frame (leg, screen position), for hit tests.
     pub dsm_markers: Vec<(usize, Pos2)>,
+    /// n-body arcs drawn last frame (for tests).
+    pub nbody_arcs_drawn: usize,
 }
 
 impl Default for SunView {
@@ -59,6 +61,7 @@ impl Default for SunView {
             orbit_builds: 0,
             dragging_dsm: None,
             dsm_markers: Vec::new(),
+            nbody_arcs_drawn: 0,
         }
     }
 }
@@ -258,6 +261,28 @@ impl SunView {
                 painter.extend(Shape::dashed_line(&pts, stroke, 8.0, 4.0));
             } else {
                 painter.add(Shape::line(pts, stroke));
+            }
+        }
+        // The n-body arcs of the latest fidelity check, when it belongs to this revision.
+        self.nbody_arcs_drawn = 0;
+        if let Some(f) = vc
+            .jobs
+            .fidelity
+            .as_ref()
+            .filter(|f| f.revision == vc.revision)
+        {
+            for arc in &f.value.arcs {
+                let line: Vec<Pos2> = arc
+                    .iter()
+                    .map(|(_, r)| to_screen(r.x / AU_KM, r.y / AU_KM))
+                    .collect();
+                painter.extend(Shape::dotted_line(
+                    &line,
+                    style::ink(dark).gamma_multiply(0.8),
+                    5.0,
+                    1.1,
+                ));
+                self.nbody_arcs_drawn += 1;
             }
         }
         // Deep-space manoeuvres: markers, the track a dragged one moves along, the drag itself.

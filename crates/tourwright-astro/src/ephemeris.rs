@@ -14,6 +14,7 @@ use serde::{Deserialize, Serialize};
 use crate::bodies::Planet;
 use crate::constants::{AU_KM, DAY_S, DEG, JULIAN_CENTURY_DAYS, MU_SUN};
 use crate::kepler::{self, Elements};
+use crate::kernel::SpkKernel;
 use crate::mga_model::MgaElements;
 use crate::time::{Epoch, Tdb};
 use crate::{State, Vec3};
@@ -37,6 +38,9 @@ pub enum EphemerisError {
     /// The source has no such body.
     #[error("{0}")]
     NoBody(String),
+    /// An ephemeris kernel could not be used (file named in the text).
+    #[error("ephemeris kernel {0}")]
+    Kernel(String),
 }
 
 /// A source of heliocentric ecliptic J2000 states.
@@ -57,6 +61,24 @@ pub struct MeanElements {
     /// Rates per Julian century (TDB).
     pub per_century: [f64; 6],
 }
+
+/// The accuracy we document for the mean elements: worst heliocentric ecliptic longitude
+/// difference (arcseconds) and distance difference (km) against JPL's DE421 over 1900-2050,
+/// measured by `tests/de421.rs` (3 001 epochs; Earth compared as the Earth-Moon barycentre) and
+/// rounded up. Standish's own error column for 1800-2050, as we remember it (15", 20", 20", 40",
+/// 400", 600", 50", 10", 5"), is smaller for Mars and beyond; the measured figures are what
+/// designs get.
+pub const MEAN_ELEMENT_ACCURACY: [(Planet, f64, f64); 9] = [
+    (Planet::Mercury, 35.0, 2_500.0),
+    (Planet::Venus, 30.0, 7_000.0),
+    (Planet::Earth, 25.0, 9_000.0),
+    (Planet::Mars, 110.0, 45_000.0),
+    (Planet::Jupiter, 550.0, 700_000.0),
+    (Planet::Saturn, 800.0, 3_000_000.0),
+    (Planet::Uranus, 120.0, 1_700_000.0),
+    (Planet::Neptune, 65.0, 1_700_000.0),
+    (Planet::Pluto, 65.0, 1_400_000.0),
+];
 
 /// Standish Table 1 (1800 AD - 2050 AD), transcribed from memory and checked against ERFA's
 /// `plan94` through pyerfa (tests/fixtures/ephemeris).
@@ -327,6 +349,8 @@ pub enum PlanetEphemeris {
     Standish(&'static MeanElements),
     /// A row of the multiple-gravity-assist benchmark's model.
     Mga(&'static MgaElements),
+    /// A planet read from a JPL SPK kernel.
+    Kernel(&'static SpkKernel, Planet),
 }
 
 impl PlanetEphemeris {
@@ -335,6 +359,7 @@ impl PlanetEphemeris {
         match self {
             PlanetEphemeris::Standish(m) => Ok(m.state_unchecked(t)),
             PlanetEphemeris::Mga(m) => m.state_unchecked(t),
+            PlanetEphemeris::Kernel(k, p) => k.state_of(*p, t),
         }
     }
 
@@ -343,6 +368,8 @@ impl PlanetEphemeris {
         match self {
             PlanetEphemeris::Standish(m) => m.a_km(),
             PlanetEphemeris::Mga(m) => m.a_km(),
+            // The mean orbit's size: used for periods and drawing scales only.
+            PlanetEphemeris::Kernel(_, p) => MeanElements::of(*p).a_km(),
         }
     }
 }
@@ -353,12 +380,14 @@ impl Ephemeris for PlanetEphemeris {
         match self {
             PlanetEphemeris::Standish(m) => m.state(t),
             PlanetEphemeris::Mga(m) => m.state(t),
+            PlanetEphemeris::Kernel(k, p) => k.state_of(*p, t),
         }
     }
     fn valid_range(&self) -> (Tdb, Tdb) {
         match self {
             PlanetEphemeris::Standish(m) => m.valid_range(),
             PlanetEphemeris::Mga(m) => m.valid_range(),
+            PlanetEphemeris::Kernel(k, p) => k.coverage(*p).unwrap_or(k.range()),
         }
     }
 }
@@ -373,6 +402,8 @@ pub enum EphemerisModel {
     /// The published multiple-gravity-assist benchmark's analytic model (Mercury to Saturn) with
     /// its own μ, radii, AU and μ☉.
     MgaBenchmark,
+    /// A JPL development ephemeris read from an SPK kernel, with the catalogue's constants.
+    Kernel(&'static SpkKernel),
 }
 
 impl EphemerisModel {
@@ -381,6 +412,7 @@ impl EphemerisModel {
         match self {
             EphemerisModel::MeanElements => "JPL mean elements 1800-2050".into(),
             EphemerisModel::MgaBenchmark => "MGA benchmark model".into(),
+            EphemerisModel::Kernel(k) => format!("JPL kernel {}", k.file_name()),
         }
     }
 
@@ -396,13 +428,23 @@ impl EphemerisModel {
                     ))
                 })
             }
+            EphemerisModel::Kernel(k) => {
+                k.coverage(p).ok_or_else(|| {
+                    EphemerisError::NoBody(format!(
+                        "{} is not in the kernel {}",
+                        p.name(),
+                        k.file_name()
+                    ))
+                })?;
+                Ok(PlanetEphemeris::Kernel(k, p))
+            }
         }
     }
 
     /// Physical constants of a planet under this model.
     pub fn planet_data(&self, p: Planet) -> crate::bodies::BodyData {
         match self {
-            EphemerisModel::MeanElements => p.data(),
+            EphemerisModel::MeanElements | EphemerisModel::Kernel(_) => p.data(),
             EphemerisModel::MgaBenchmark => crate::mga_model::planet_data(p).unwrap_or(p.data()),
         }
     }
@@ -410,7 +452,7 @@ impl EphemerisModel {
     /// The heliocentric gravitational parameter that goes with this model, km³/s².
     pub fn mu_sun(&self) -> f64 {
         match self {
-            EphemerisModel::MeanElements => MU_SUN,
+            EphemerisModel::MeanElements | EphemerisModel::Kernel(_) => MU_SUN,
             EphemerisModel::MgaBenchmark => crate::mga_model::MU_SUN,
         }
     }
@@ -420,6 +462,7 @@ impl EphemerisModel {
         match self {
             EphemerisModel::MeanElements => mean_element_range(),
             EphemerisModel::MgaBenchmark => crate::mga_model::range(),
+            EphemerisModel::Kernel(k) => k.range(),
         }
     }
 }

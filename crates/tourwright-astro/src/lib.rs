@@ -6,9 +6,12 @@ pub mod constants;
 pub mod ephemeris;
 pub mod flyby;
 pub mod kepler;
+pub mod kernel;
 pub mod lambert;
 pub mod mga_model;
+pub mod nbody;
 pub mod time;
+pub mod tisserand;
 pub mod transfer;
 
 /// A 3-vector of f64 (km or km/s in the engine's frame).

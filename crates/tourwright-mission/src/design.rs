@@ -65,6 +65,50 @@ pub enum EphemerisChoice {
     MeanElements,
     /// The published multiple-gravity-assist benchmark's analytic model and constants.
     MgaBenchmark,
+    /// A JPL development ephemeris (DE421, DE440, ...) from a SPICE SPK kernel file.
+    Kernel(KernelRef),
+}
+
+/// Where a design's SPK kernel is: a path as written in the file (relative to the design file's
+/// folder, or absolute), or empty for the default kernel of the settings (`TOURWRIGHT_KERNEL`).
+#[derive(Clone, Debug, Serialize, Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+pub struct KernelRef {
+    /// The path as written.
+    pub path: String,
+    /// The folder a relative path is taken from (the design file's folder; the working folder
+    /// when none). Not written to files.
+    #[serde(skip)]
+    pub base: Option<std::path::PathBuf>,
+}
+
+impl PartialEq for KernelRef {
+    fn eq(&self, other: &Self) -> bool {
+        self.path == other.path
+    }
+}
+impl Eq for KernelRef {}
+
+impl KernelRef {
+    /// A kernel at `path` as given (relative to the working folder when relative).
+    pub fn new(path: impl Into<String>) -> KernelRef {
+        KernelRef {
+            path: path.into(),
+            base: None,
+        }
+    }
+
+    /// The file to open: the path against its base, or the default kernel when empty.
+    pub fn resolved(&self) -> Option<std::path::PathBuf> {
+        if self.path.trim().is_empty() {
+            return tourwright_astro::kernel::default_kernel();
+        }
+        let p = std::path::Path::new(&self.path);
+        Some(match &self.base {
+            Some(b) if p.is_relative() => b.join(p),
+            _ => p.to_path_buf(),
+        })
+    }
 }
 
 impl EphemerisChoice {
@@ -79,25 +123,40 @@ impl EphemerisChoice {
         ("mga-benchmark", EphemerisChoice::MgaBenchmark),
     ];
 
-    /// Read a command-line name (`mean-elements`, `mga-benchmark`).
+    /// Read a command-line name (`mean-elements`, `mga-benchmark`, `kernel:PATH`, or `kernel`
+    /// for the default kernel).
     pub fn parse(s: &str) -> Result<EphemerisChoice, String> {
+        let t = s.trim();
+        if t.eq_ignore_ascii_case("kernel") {
+            return Ok(EphemerisChoice::Kernel(KernelRef::default()));
+        }
+        if let Some(p) = t.strip_prefix("kernel:") {
+            if p.trim().is_empty() {
+                return Err("kernel: needs a path, e.g. kernel:de421.bsp".into());
+            }
+            return Ok(EphemerisChoice::Kernel(KernelRef::new(p)));
+        }
         Self::NAMED
             .iter()
             .find(|(n, _)| n.eq_ignore_ascii_case(s.trim()))
             .map(|(_, c)| c.clone())
             .ok_or_else(|| {
                 format!(
-                    "unknown ephemeris '{s}' (choose {})",
+                    "unknown ephemeris '{s}' (choose {}, kernel:PATH)",
                     Self::NAMED.map(|n| n.0).join(", ")
                 )
             })
     }
 
     /// Words for menus.
-    pub fn label(&self) -> &'static str {
+    pub fn label(&self) -> String {
         match self {
-            EphemerisChoice::MeanElements => "JPL mean elements 1800-2050",
-            EphemerisChoice::MgaBenchmark => "MGA benchmark model",
+            EphemerisChoice::MeanElements => "JPL mean elements 1800-2050".into(),
+            EphemerisChoice::MgaBenchmark => "MGA benchmark model".into(),
+            EphemerisChoice::Kernel(k) if k.path.trim().is_empty() => {
+                "JPL kernel (default from settings)".into()
+            }
+            EphemerisChoice::Kernel(k) => format!("JPL kernel {}", k.path),
         }
     }
 }

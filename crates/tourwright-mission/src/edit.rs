@@ -150,6 +150,9 @@ pub enum EditError {
     /// A deep-space manoeuvre's rules (start state, place on the leg).
     #[error("{0}")]
     Dsm(&'static str),
+    /// The ephemeris source cannot be used (the kernel's file, body or range in the text).
+    #[error("{0}")]
+    Ephemeris(String),
 }
 
 impl Edit {
@@ -374,7 +377,13 @@ impl Edit {
             Edit::SetSpacecraft(s) => d.spacecraft = s,
             Edit::SetVehicle(v) => d.launch_vehicle = v,
             Edit::SetObjective(o) => d.search.objective = o,
-            Edit::SetEphemeris(e) => d.ephemeris = e,
+            Edit::SetEphemeris(e) => {
+                // A kernel is opened and checked before the design changes.
+                let mut probe = d.clone();
+                probe.ephemeris = e.clone();
+                crate::tour::Catalog::of(&probe).map_err(|i| EditError::Ephemeris(i.reason))?;
+                d.ephemeris = e
+            }
             Edit::Replace(x) => *d = *x,
         }
         Ok(())

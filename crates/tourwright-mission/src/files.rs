@@ -294,7 +294,8 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
     Ok(())
 }
 
-/// Parse design text; `path` is only used in messages.
+/// Parse design text; `path` names the file in messages, and its folder is where a relative
+/// kernel path is looked for.
 pub fn from_str(text: &str, path: &Path) -> Result<MissionDesign, FileError> {
     if text.len() > 16 * 1024 * 1024 {
         return Err(FileError::Parse {
@@ -305,12 +306,16 @@ pub fn from_str(text: &str, path: &Path) -> Result<MissionDesign, FileError> {
         });
     }
     let opts = ron::Options::default().with_recursion_limit(64);
-    let d: MissionDesign = opts.from_str(text).map_err(|e| FileError::Parse {
+    let mut d: MissionDesign = opts.from_str(text).map_err(|e| FileError::Parse {
         path: path.into(),
         line: e.span.start.line,
         column: e.span.start.col,
         reason: e.code.to_string(),
     })?;
+    // A kernel path is relative to the design file's folder.
+    if let crate::design::EphemerisChoice::Kernel(k) = &mut d.ephemeris {
+        k.base = Some(folder_of(path));
+    }
     validate(&d).map_err(|i| FileError::Invalid {
         path: path.into(),
         field: i.field,
@@ -326,6 +331,14 @@ pub fn load(path: &Path) -> Result<MissionDesign, FileError> {
         source: e,
     })?;
     from_str(&text, path)
+}
+
+/// The folder a file is in ("." for a bare name).
+fn folder_of(path: &Path) -> std::path::PathBuf {
+    path.parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."))
+        .to_path_buf()
 }
 
 /// The text a design is saved as (pretty RON with a header comment).
@@ -349,6 +362,25 @@ pub fn save(d: &MissionDesign, path: &Path) -> Result<(), FileError> {
         field: i.field,
         reason: i.reason,
     })?;
+    // A kernel path relative to another folder than the target's is written absolute, so the
+    // saved file still finds its kernel.
+    let owned;
+    let mut d = d;
+    if let crate::design::EphemerisChoice::Kernel(k) = &d.ephemeris {
+        let rel = Path::new(&k.path).is_relative() && !k.path.trim().is_empty();
+        let base = k.base.clone().unwrap_or_else(|| ".".into());
+        if rel && base != folder_of(path) {
+            if let Some(abs) = k.resolved() {
+                let abs = abs.canonicalize().unwrap_or(abs);
+                let mut copy = d.clone();
+                copy.ephemeris = crate::design::EphemerisChoice::Kernel(
+                    crate::design::KernelRef::new(abs.to_string_lossy()),
+                );
+                owned = copy;
+                d = &owned;
+            }
+        }
+    }
     let text = to_string(d);
     let io = |e| FileError::Io {
         path: path.into(),

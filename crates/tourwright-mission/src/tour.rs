@@ -168,9 +168,23 @@ impl Catalog {
                 ephemeris: BodyEphemeris::User(orbit),
             });
         }
-        let model = match d.ephemeris {
+        let model = match &d.ephemeris {
             EphemerisChoice::MeanElements => EphemerisModel::MeanElements,
             EphemerisChoice::MgaBenchmark => EphemerisModel::MgaBenchmark,
+            EphemerisChoice::Kernel(k) => {
+                let path = k.resolved().ok_or_else(|| Invalid {
+                    field: "ephemeris".into(),
+                    reason: "no default kernel: set one in the settings or TOURWRIGHT_KERNEL, \
+                             or give the kernel's path"
+                        .into(),
+                })?;
+                let kernel =
+                    tourwright_astro::kernel::SpkKernel::open(&path).map_err(|e| Invalid {
+                        field: "ephemeris".into(),
+                        reason: e.to_string(),
+                    })?;
+                EphemerisModel::Kernel(kernel)
+            }
         };
         Ok(Catalog { model, users })
     }

@@ -390,3 +390,54 @@ pub fn coast_track(tour: &PreparedTour, e: &Evaluation, k: usize, n: usize) -> V
     }
     out
 }
+
+/// A heliocentric arc of an evaluated tour as a point of the Tisserand graph.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ArcOrbit {
+    /// Leg index.
+    pub leg: usize,
+    /// 0 for the arc a leg starts with, 1 for the arc after its manoeuvre.
+    pub piece: usize,
+    /// Periapsis radius, AU.
+    pub rp_au: f64,
+    /// Apoapsis radius, AU.
+    pub ra_au: f64,
+}
+
+/// Every heliocentric arc of the tour as (r_p, r_a), in flight order: the steps between
+/// consecutive points are the swing-bys (and manoeuvres). Unbound arcs are left out.
+pub fn arc_orbits(tour: &PreparedTour, e: &Evaluation) -> Vec<ArcOrbit> {
+    let mut out = Vec::new();
+    for (k, leg) in e.legs.iter().enumerate() {
+        if !leg.solved || k + 1 >= e.stops.len() {
+            continue;
+        }
+        let start = State {
+            r: e.stops[k].body_state.r,
+            v: e.stops[k].v_helio_out,
+        };
+        if let Some((rp, ra)) = tourwright_astro::tisserand::orbit_point(&start, tour.mu_sun) {
+            out.push(ArcOrbit {
+                leg: k,
+                piece: 0,
+                rp_au: rp,
+                ra_au: ra,
+            });
+        }
+        if let Some(m) = leg.dsm {
+            let after = State {
+                r: m.r,
+                v: m.v_after,
+            };
+            if let Some((rp, ra)) = tourwright_astro::tisserand::orbit_point(&after, tour.mu_sun) {
+                out.push(ArcOrbit {
+                    leg: k,
+                    piece: 1,
+                    rp_au: rp,
+                    ra_au: ra,
+                });
+            }
+        }
+    }
+    out
+}
