@@ -196,11 +196,21 @@ fn fly_leg(
     }
 }
 
-/// Solve 3×3 `a x = b` (Cramer); `None` when singular.
+/// The least-squares step for 3×3 `a x = b` through the singular value decomposition, directions
+/// with singular values below 1e-6 of the largest left out: a resonant leg (whole revolutions
+/// back to the same body) has a direction of departure Δv that barely moves the arrival point,
+/// and a plain Newton step along it would be enormous.
 fn solve3(a: &[[f64; 3]; 3], b: &[f64; 3]) -> Option<[f64; 3]> {
     let m = nalgebra::Matrix3::from_fn(|i, j| a[i][j]);
-    let x = m.lu().solve(&nalgebra::Vector3::new(b[0], b[1], b[2]))?;
-    Some([x[0], x[1], x[2]])
+    let svd = m.svd(true, true);
+    let smax = svd.singular_values.max();
+    if !(smax > 0.0 && smax.is_finite()) {
+        return None;
+    }
+    let x = svd
+        .solve(&nalgebra::Vector3::new(b[0], b[1], b[2]), 1e-6 * smax)
+        .ok()?;
+    x.iter().all(|v| v.is_finite()).then(|| [x[0], x[1], x[2]])
 }
 
 /// Run the check on an evaluated tour. `progress(f)` is told the fraction done; `cancel()`
@@ -289,7 +299,12 @@ pub fn check(
             };
             // Damped Newton: halve the step until the miss shrinks (close passes of other bodies
             // make the map from Δv to miss bend).
-            let full = Vec3::new(step[0], step[1], step[2]);
+            // A trust region of 20 m/s per step: corrections are small, and the linear model of a
+            // resonant return holds only nearby.
+            let mut full = Vec3::new(step[0], step[1], step[2]);
+            if full.norm() > 0.02 {
+                full *= 0.02 / full.norm();
+            }
             let mut lambda = 1.0;
             loop {
                 let trial = dv0 + lambda * full;
