@@ -813,8 +813,9 @@ fn autosave_survives_an_unclean_exit_and_a_clean_exit_leaves_nothing() {
     let auto = dir.path().join("autosave");
     let (mut h, file) = harness_on_copy(0, dir.path());
     let on_disk = std::fs::read_to_string(&file).unwrap();
+    // A long delay: the timer writes nothing in this test's first part.
     let mut a = Autosave::in_dir(&auto);
-    a.delay = std::time::Duration::ZERO;
+    a.delay = std::time::Duration::from_secs(3600);
     h.state_mut().enable_autosave(Some(a));
     assert!(h.state().dialogs.recovery.is_empty());
     h.state_mut()
@@ -824,6 +825,17 @@ fn autosave_survives_an_unclean_exit_and_a_clean_exit_leaves_nothing() {
     h.run_steps(3);
     let edited = h.state().design().clone();
     let saved = h.state().autosave.as_ref().unwrap().file();
+    assert!(!saved.exists(), "written before its time");
+    // A panic writes the autosave first (the hook runs, then the panic goes on as before).
+    tourwright::gui::autosave::install_panic_hook();
+    let r = std::panic::catch_unwind(|| panic!("simulated failure in the GUI thread"));
+    assert!(r.is_err());
+    assert!(saved.is_file(), "the panic hook wrote no autosave");
+    assert_eq!(files::load(&saved).unwrap(), edited);
+    // The timer writes too, once its delay has passed.
+    std::fs::remove_file(&saved).unwrap();
+    h.state_mut().autosave.as_mut().unwrap().delay = std::time::Duration::ZERO;
+    h.run_steps(2);
     assert!(saved.is_file(), "no autosave written");
     // An interrupted later write (the temporary file half written, never renamed) leaves the
     // autosave readable as it was.

@@ -43,6 +43,9 @@ pub struct Settings {
     pub show_search: bool,
     /// The view shown.
     pub view: View,
+    /// The default JPL kernel (the last one chosen), for designs that ask for "the default".
+    #[serde(default)]
+    pub default_kernel: Option<PathBuf>,
 }
 
 impl Default for Settings {
@@ -54,6 +57,7 @@ impl Default for Settings {
             show_ledger: true,
             show_search: false,
             view: View::Sun,
+            default_kernel: None,
         }
     }
 }
@@ -211,6 +215,9 @@ impl TourwrightApp {
             .storage
             .and_then(|s| eframe::get_value(s, "tourwright.settings"))
             .unwrap_or_default();
+        if settings.default_kernel.is_some() {
+            tourwright_astro::kernel::set_default_kernel(settings.default_kernel.clone());
+        }
         let mut tried_err = None;
         let candidate = file.or_else(|| settings.recent.first().cloned());
         if let Some(p) = candidate {

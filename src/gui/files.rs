@@ -129,7 +129,12 @@ pub fn use_kernel(app: &mut TourwrightApp, p: &Path) {
         .doc
         .apply(tourwright_mission::Edit::SetEphemeris(choice))
     {
-        Ok(()) => app.status = Some((format!("ephemeris: kernel {}", p.display()), false)),
+        Ok(()) => {
+            // The last kernel chosen is the default for designs that ask for one.
+            app.settings.default_kernel = Some(abs.clone());
+            tourwright_astro::kernel::set_default_kernel(Some(abs));
+            app.status = Some((format!("ephemeris: kernel {}", p.display()), false));
+        }
         Err(e) => {
             app.dialogs.error = Some(format!(
                 "The kernel cannot be used; the design is unchanged.\n\n{e}"

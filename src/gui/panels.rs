@@ -66,6 +66,11 @@ impl TourPanel {
                     for (_, c) in EphemerisChoice::NAMED {
                         ui.selectable_value(&mut choice, c.clone(), c.label());
                     }
+                    if tourwright_astro::kernel::default_kernel().is_some() {
+                        let default = EphemerisChoice::Kernel(Default::default());
+                        let label = default.label();
+                        ui.selectable_value(&mut choice, default, label);
+                    }
                     if ui
                         .selectable_label(
                             matches!(d.ephemeris, EphemerisChoice::Kernel(_)),
