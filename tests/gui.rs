@@ -875,3 +875,43 @@ fn autosave_survives_an_unclean_exit_and_a_clean_exit_leaves_nothing() {
         .collect();
     assert!(left.is_empty(), "{left:?}");
 }
+
+/// An edit that would make a design no file could hold is refused: the reason (field path and
+/// why) appears beside the stop it touched, and the design does not change.
+#[test]
+fn an_out_of_range_edit_is_refused_beside_its_field() {
+    let mut h = harness(0);
+    let before = h.state().design().clone();
+    h.state_mut().apply(tourwright::gui::action::Action::Edit(
+        Edit::SetMinAltitude {
+            stop: 1,
+            km: Some(-5000.0),
+        },
+    ));
+    h.run_steps(3);
+    assert_eq!(*h.state().design(), before);
+    let (stop, msg) = h
+        .state()
+        .views
+        .tour
+        .refusal()
+        .cloned()
+        .expect("a refusal is shown");
+    assert_eq!(stop, Some(1));
+    assert!(msg.starts_with("stops[1].swingby.min_altitude_km"), "{msg}");
+    // Beside the stop, and in the status bar.
+    assert_eq!(
+        h.query_all_by_label_contains("not changed: stops[1].swingby.min_altitude_km")
+            .count(),
+        2
+    );
+    // A good edit clears it.
+    h.state_mut().apply(tourwright::gui::action::Action::Edit(
+        Edit::SetMinAltitude {
+            stop: 1,
+            km: Some(500.0),
+        },
+    ));
+    h.run_steps(2);
+    assert!(h.state().views.tour.refusal().is_none());
+}

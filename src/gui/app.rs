@@ -311,16 +311,20 @@ impl TourwrightApp {
     /// Apply one action.
     pub fn apply(&mut self, action: Action) {
         match action {
-            Action::Edit(e) => {
-                if let Err(err) = self.doc.apply(e) {
+            Action::Edit(e) => match self.doc.apply(e) {
+                Ok(()) => self.views.tour.clear_refusal(),
+                Err(err) => {
+                    self.views.tour.note_refusal(&err.to_string());
                     self.status = Some((format!("not changed: {err}"), true));
                 }
-            }
-            Action::EditLive(e) => {
-                if let Err(err) = self.doc.apply_live(e) {
+            },
+            Action::EditLive(e) => match self.doc.apply_live(e) {
+                Ok(()) => self.views.tour.clear_refusal(),
+                Err(err) => {
+                    self.views.tour.note_refusal(&err.to_string());
                     self.status = Some((format!("not changed: {err}"), true));
                 }
-            }
+            },
             Action::CommitGesture => self.doc.commit_gesture(),
             Action::Undo => {
                 self.doc.undo();

@@ -24,6 +24,8 @@ pub struct TourPanel {
     epoch_edit: Option<(usize, String)>,
     /// Validation message of the epoch field: (stop, message).
     epoch_error: Option<(usize, String)>,
+    /// The last refused edit's reason, with the stop its field belongs to (None: the design).
+    refusal: Option<(Option<usize>, String)>,
 }
 
 impl TourPanel {
@@ -31,6 +33,27 @@ impl TourPanel {
     pub fn forget_edits(&mut self) {
         self.epoch_edit = None;
         self.epoch_error = None;
+        self.refusal = None;
+    }
+
+    /// Show why an edit was refused beside the part of the design it touched: the stop named in
+    /// the field path (`stops[k]...`), or the top of the panel.
+    pub fn note_refusal(&mut self, message: &str) {
+        let stop = message
+            .strip_prefix("stops[")
+            .and_then(|r| r.split(']').next())
+            .and_then(|n| n.parse().ok());
+        self.refusal = Some((stop, message.to_string()));
+    }
+
+    /// Clear the refusal message (after a successful edit).
+    pub fn clear_refusal(&mut self) {
+        self.refusal = None;
+    }
+
+    /// The refusal message shown, if any: (stop, message).
+    pub fn refusal(&self) -> Option<&(Option<usize>, String)> {
+        self.refusal.as_ref()
     }
 
     /// The validation message shown under a stop's date, if any.
@@ -55,6 +78,11 @@ impl TourPanel {
             }
         });
         ui.label(RichText::new(d.sequence_label()).strong());
+        if let Some((None, msg)) = &self.refusal {
+            ui.label(
+                RichText::new(format!("! not changed: {msg}")).color(style::error_color(vc.dark)),
+            );
+        }
         ui.horizontal(|ui| {
             let lab = ui
                 .label("Ephemeris")
@@ -126,6 +154,14 @@ impl TourPanel {
                     },
                 ));
                 frame.show(ui, |ui| {
+                    if let Some((Some(j), msg)) = &self.refusal {
+                        if *j == k {
+                            ui.label(
+                                RichText::new(format!("! not changed: {msg}"))
+                                    .color(style::error_color(vc.dark)),
+                            );
+                        }
+                    }
                     let header = format!("{} {} — {}", k + 1, kind.label(), stop.body);
                     if ui
                         .selectable_label(selected, RichText::new(header).strong())

@@ -176,6 +176,7 @@ pub fn powered_swingby(vinf_in: &Vec3, vinf_out: &Vec3, mu: f64) -> Option<Power
     // Starting guess: the ballistic answer for the mean v∞.
     let vm = 0.5 * (vi + vo);
     let mut u = periapsis_for_turn(delta, vm, mu)?.max(1e-300).ln();
+    crate::work::charge(200);
     let (mut lo, mut hi) = (f64::NEG_INFINITY, f64::INFINITY);
     for _ in 0..200 {
         let (val, d) = f(u.exp());

@@ -156,6 +156,7 @@ pub fn eccentric_anomaly(m: f64, e: f64) -> f64 {
         return 0.0;
     }
     // Second-order starter (Danby 1987, from memory): E0 = M + e sin M (1 + e cos M).
+    crate::work::charge(60);
     let (sm, cm) = m.sin_cos();
     let mut x = m + e * sm * (1.0 + e * cm);
     let (mut lo, mut hi) = if m > 0.0 { (0.0, PI) } else { (-PI, 0.0) };
@@ -190,13 +191,17 @@ pub fn hyperbolic_anomaly(m: f64, e: f64) -> f64 {
     if m == 0.0 {
         return 0.0;
     }
+    crate::work::charge(1200); // at most ~1 100 bracket doublings, then 100 steps
     let sgn = m.signum();
     let ma = m.abs();
     // Bracket: H in (0, asinh(M/e)+something]; f(H) = e sinh H − H − M is increasing for H>0.
     let mut lo = 0.0;
     let mut hi = ((ma / e) + 1.0).asinh().max(1.0);
-    while e * hi.sinh() - hi - ma < 0.0 {
+    // sinh overflows after about ten doublings, which ends the loop; the cap is a second guard.
+    let mut doublings = 0;
+    while e * hi.sinh() - hi - ma < 0.0 && doublings < 1100 {
         hi *= 2.0;
+        doublings += 1;
     }
     let mut x = (2.0 * ma / e + 1.8).ln().min(hi).max(1e-3 * hi);
     for _ in 0..100 {
@@ -297,6 +302,7 @@ pub fn propagate(s: &State, dt: f64, mu: f64) -> Result<State, KeplerError> {
 const MAX_SPLIT_DEPTH: u32 = 12;
 
 fn propagate_split(s: &State, dt: f64, mu: f64, depth: u32) -> Result<State, KeplerError> {
+    crate::work::charge(300);
     if !(dt.is_finite() && mu > 0.0 && mu.is_finite()) {
         return Err(KeplerError::Degenerate("time step or μ not finite"));
     }

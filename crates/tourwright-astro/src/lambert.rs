@@ -179,6 +179,7 @@ impl Geometry {
     }
 
     fn householder(&self, mut x0: f64, n: u32, eps: f64, max_iter: u32) -> (f64, u32) {
+        crate::work::charge(max_iter as u64);
         let mut it = 0;
         while it < max_iter {
             let tof = self.x2tof(x0, n);

@@ -13,6 +13,7 @@ pub mod nbody;
 pub mod time;
 pub mod tisserand;
 pub mod transfer;
+pub mod work;
 
 /// A 3-vector of f64 (km or km/s in the engine's frame).
 pub type Vec3 = nalgebra::Vector3<f64>;

@@ -153,6 +153,9 @@ pub enum EditError {
     /// The ephemeris source cannot be used (the kernel's file, body or range in the text).
     #[error("{0}")]
     Ephemeris(String),
+    /// The result would not be a valid design (field path and reason).
+    #[error("{0}")]
+    Invalid(String),
 }
 
 impl Edit {
@@ -184,8 +187,17 @@ impl Edit {
         }
     }
 
-    /// Apply to `d`. On an error `d` is unchanged.
+    /// Apply to `d`. On an error `d` is unchanged. The result passes the same validation as a
+    /// file (`files::validate`): an edit can never make a design that would not load.
     pub fn apply(self, d: &mut MissionDesign) -> Result<(), EditError> {
+        let mut next = d.clone();
+        self.apply_unchecked(&mut next)?;
+        crate::files::validate(&next).map_err(|i| EditError::Invalid(i.to_string()))?;
+        *d = next;
+        Ok(())
+    }
+
+    fn apply_unchecked(self, d: &mut MissionDesign) -> Result<(), EditError> {
         let n = d.stops.len();
         let stop = |k: usize| {
             if k < n {

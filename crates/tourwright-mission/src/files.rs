@@ -66,8 +66,52 @@ fn bad(field: impl Into<String>, reason: impl Into<String>) -> Invalid {
     }
 }
 
+/// Largest length of a design's name, characters.
+pub const MAX_NAME_CHARS: usize = 1_000;
+/// Largest length of a design's notes (and of any text field), characters.
+pub const MAX_TEXT_CHARS: usize = 65_536;
+
+/// A number must be finite and inside [lo, hi] (units in the field's name).
+fn in_range(field: impl Into<String>, x: f64, lo: f64, hi: f64) -> Result<(), Invalid> {
+    if x.is_finite() && x >= lo && x <= hi {
+        Ok(())
+    } else {
+        Err(bad(
+            field,
+            format!(
+                "{} is outside the physical range {} .. {}",
+                show(x),
+                show(lo),
+                show(hi)
+            ),
+        ))
+    }
+}
+
+/// A number for a message: plain when moderate, with an exponent otherwise.
+fn show(x: f64) -> String {
+    if x == 0.0 || !x.is_finite() || (1e-4..1e9).contains(&x.abs()) {
+        format!("{x}")
+    } else {
+        format!("{x:e}")
+    }
+}
+
 /// Check a design for values a file or a user can get wrong. The first problem is returned.
+/// Every number has a finite, physical range; epochs lie inside the ephemeris source's range.
 pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
+    if d.name.chars().count() > MAX_NAME_CHARS {
+        return Err(bad(
+            "name",
+            format!("longer than {MAX_NAME_CHARS} characters"),
+        ));
+    }
+    if d.notes.chars().count() > MAX_TEXT_CHARS {
+        return Err(bad(
+            "notes",
+            format!("longer than {MAX_TEXT_CHARS} characters"),
+        ));
+    }
     if d.format != FORMAT_TAG {
         return Err(bad(
             "format",
@@ -100,9 +144,25 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
         {
             return Err(bad(f("name"), format!("'{}' is defined twice", u.name)));
         }
-        if !(u.mu_km3_s2 >= 0.0) || !(u.radius_km >= 0.0) {
-            return Err(bad(f("mu_km3_s2"), "μ and radius must be zero or positive"));
+        if u.name.chars().count() > MAX_NAME_CHARS {
+            return Err(bad(f("name"), "name too long"));
         }
+        // Up to ten times Jupiter's μ and the Sun's radius: anything a user body can be.
+        in_range(f("mu_km3_s2"), u.mu_km3_s2, 0.0, 1.3e9)?;
+        in_range(f("radius_km"), u.radius_km, 0.0, 7.0e5)?;
+        let el = &u.elements;
+        // q from a sun-grazer to the inner Oort cloud; e up to strongly hyperbolic.
+        in_range(f("elements.q_au"), el.q_au, 1e-4, 1e4)?;
+        in_range(f("elements.e"), el.e, 0.0, 100.0)?;
+        in_range(f("elements.i_deg"), el.i_deg, 0.0, 180.0)?;
+        in_range(f("elements.raan_deg"), el.raan_deg, -3600.0, 3600.0)?;
+        in_range(f("elements.argp_deg"), el.argp_deg, -3600.0, 3600.0)?;
+        in_range(
+            f("elements.mean_anomaly_deg"),
+            el.mean_anomaly_deg,
+            -1e7,
+            1e7,
+        )?;
     }
     let catalog = Catalog::of(d)?;
     if d.stops.len() < 2 {
@@ -140,20 +200,28 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 "stops must be in time order",
             ));
         }
-        if let Some(m) = s.swingby.min_altitude_km {
-            if !m.is_finite() {
-                return Err(bad(
-                    format!("stops[{k}].swingby.min_altitude_km"),
-                    "not a number",
-                ));
-            }
+        let sw = &s.swingby;
+        if let Some(m) = sw.min_altitude_km {
+            // Not below the surface; at most about a hundred times Jupiter's radius.
+            in_range(format!("stops[{k}].swingby.min_altitude_km"), m, 0.0, 1e7)?;
+        }
+        if let Some(v) = sw.min_vinf_km_s {
+            in_range(format!("stops[{k}].swingby.min_vinf_km_s"), v, 0.0, 100.0)?;
+        }
+        if let Some(v) = sw.max_powered_dv_km_s {
+            in_range(
+                format!("stops[{k}].swingby.max_powered_dv_km_s"),
+                v,
+                0.0,
+                100.0,
+            )?;
         }
         if let Some(m) = s.swingby.max_altitude_km {
             let min = s
                 .swingby
                 .min_altitude_km
                 .unwrap_or(body.data.min_altitude_km);
-            if !(m.is_finite() && m >= min) {
+            if !(m.is_finite() && m >= min && m <= 1e9) {
                 return Err(bad(
                     format!("stops[{k}].swingby.max_altitude_km"),
                     format!("need a number at least the minimum altitude ({min} km)"),
@@ -171,10 +239,31 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                     "altitude and aim must be numbers",
                 ));
             }
-            if altitude_km <= -body.data.radius_km {
-                return Err(bad(
+            in_range(
+                format!("stops[{k}].swingby.mode.altitude_km"),
+                altitude_km,
+                0.0,
+                1e9,
+            )
+            .map_err(|_| {
+                bad(
                     format!("stops[{k}].swingby.mode.altitude_km"),
-                    "periapsis below the planet's centre",
+                    format!("{altitude_km} km: the periapsis must lie above the surface"),
+                )
+            })?;
+            in_range(
+                format!("stops[{k}].swingby.mode.aim_deg"),
+                aim_deg,
+                -3600.0,
+                3600.0,
+            )?;
+            if !(body.data.mu > 0.0) && k > 0 && k + 1 < d.stops.len() {
+                return Err(bad(
+                    format!("stops[{k}].swingby.mode"),
+                    format!(
+                        "'{}' has no mass (μ = 0): it cannot shape a swing-by",
+                        s.body
+                    ),
                 ));
             }
         }
@@ -232,21 +321,15 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
         }
     }
     let sc = &d.spacecraft;
-    if !(sc.dry_mass_kg >= 0.0) {
-        return Err(bad(
-            "spacecraft.dry_mass_kg",
-            "mass must be zero or positive",
-        ));
+    if !(sc.dry_mass_kg > 0.0) {
+        return Err(bad("spacecraft.dry_mass_kg", "mass must be positive"));
     }
-    if !(sc.propellant_kg >= 0.0) {
-        return Err(bad(
-            "spacecraft.propellant_kg",
-            "mass must be zero or positive",
-        ));
-    }
+    in_range("spacecraft.dry_mass_kg", sc.dry_mass_kg, 1e-3, 1e8)?;
+    in_range("spacecraft.propellant_kg", sc.propellant_kg, 0.0, 1e9)?;
     if !(sc.isp_s > 0.0) {
         return Err(bad("spacecraft.isp_s", "specific impulse must be positive"));
     }
+    in_range("spacecraft.isp_s", sc.isp_s, 1.0, 1e5)?;
     if let Some(lv) = &d.launch_vehicle {
         for (i, p) in lv.performance.iter().enumerate() {
             if !(p.mass_kg >= 0.0) || !p.c3_km2_s2.is_finite() {
@@ -255,6 +338,18 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                     "mass must be zero or positive",
                 ));
             }
+            in_range(
+                format!("launch_vehicle.performance[{i}].mass_kg"),
+                p.mass_kg,
+                0.0,
+                1e9,
+            )?;
+            in_range(
+                format!("launch_vehicle.performance[{i}].c3_km2_s2"),
+                p.c3_km2_s2,
+                -200.0,
+                1e4,
+            )?;
             if i > 0 && p.c3_km2_s2 <= lv.performance[i - 1].c3_km2_s2 {
                 return Err(bad(
                     format!("launch_vehicle.performance[{i}].c3_km2_s2"),
@@ -271,6 +366,22 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
         if !(periapsis_radius_km > 0.0) {
             return Err(bad("arrival.periapsis_radius_km", "must be positive"));
         }
+        // Above the arrival body's surface.
+        let last = d.stops.last().map(|s| s.body.as_str()).unwrap_or("");
+        let r = catalog.body(last).map(|b| b.data.radius_km).unwrap_or(0.0);
+        if !(periapsis_radius_km.is_finite()
+            && periapsis_radius_km > r
+            && periapsis_radius_km <= 1e10)
+        {
+            return Err(bad(
+                "arrival.periapsis_radius_km",
+                format!(
+                    "{} km: the capture periapsis must lie above the surface of {last} (radius \
+                     {r} km)",
+                    show(periapsis_radius_km)
+                ),
+            ));
+        }
         if !(0.0..1.0).contains(&eccentricity) {
             return Err(bad(
                 "arrival.eccentricity",
@@ -282,6 +393,20 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
         if !(c3 >= 0.0) {
             return Err(bad("launch.max_c3_km2_s2", "must be zero or positive"));
         }
+        in_range("launch.max_c3_km2_s2", c3, 0.0, 1e4)?;
+    }
+    for (name, v) in [
+        ("launch.min_dla_deg", d.launch.min_dla_deg),
+        ("launch.max_dla_deg", d.launch.max_dla_deg),
+    ] {
+        if let Some(x) = v {
+            in_range(name, x, -90.0, 90.0)?;
+        }
+    }
+    if let (Some(a), Some(b)) = (d.launch.min_dla_deg, d.launch.max_dla_deg) {
+        if a > b {
+            return Err(bad("launch.max_dla_deg", "below the smallest declination"));
+        }
     }
     for (k, b) in d.search.leg_tof.iter().enumerate() {
         if !(b.min_days > 0.0 && b.max_days >= b.min_days) {
@@ -290,21 +415,189 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 "need 0 < min_days ≤ max_days",
             ));
         }
+        in_range(
+            format!("search.leg_tof[{k}].max_days"),
+            b.max_days,
+            0.0,
+            1e5,
+        )?;
+    }
+    if let Some(t) = d.search.max_total_tof_days {
+        in_range("search.max_total_tof_days", t, 1e-3, 1e5)?;
+    }
+    for (name, e) in [
+        ("search.launch_earliest", d.search.launch_earliest),
+        ("search.launch_latest", d.search.launch_latest),
+    ] {
+        if let Some(e) = e {
+            let t = e.tdb();
+            if !(t.0 >= lo.0 && t.0 <= hi.0) {
+                return Err(bad(
+                    name,
+                    format!(
+                        "{} is outside the ephemeris range {} .. {}",
+                        e.to_date_utc(),
+                        lo.to_date_utc(),
+                        hi.to_date_utc()
+                    ),
+                ));
+            }
+        }
+    }
+    if let (Some(a), Some(b)) = (d.search.launch_earliest, d.search.launch_latest) {
+        if b.tdb().0 < a.tdb().0 {
+            return Err(bad(
+                "search.launch_latest",
+                format!(
+                    "{} is before launch_earliest {}: the search window is reversed",
+                    b.to_date_utc(),
+                    a.to_date_utc()
+                ),
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Largest design file read, bytes.
+pub const MAX_FILE_BYTES: u64 = 16 * 1024 * 1024;
+/// Longest string literal in a design file, bytes (as written, escapes included).
+pub const MAX_STRING_BYTES: usize = 256 * 1024;
+/// Most escape sequences in one string literal. The RON parser's work on a string grows with
+/// the square of its escapes (measured: 128 k escapes 0.8 s, 512 k 12 s); this bound, with the
+/// file-size limit, keeps parsing linear in the file's size.
+pub const MAX_STRING_ESCAPES: usize = 4096;
+
+/// One linear pass over the text: every string literal (plain or raw) must be shorter than
+/// [`MAX_STRING_BYTES`]. Comments and character literals are skipped.
+fn check_strings(text: &str, path: &Path) -> Result<(), FileError> {
+    let b = text.as_bytes();
+    let (mut i, mut line, mut col) = (0usize, 1usize, 1usize);
+    let too_long = |line, column| FileError::Parse {
+        path: path.into(),
+        line,
+        column,
+        reason: format!(
+            "a string longer than {} KiB or with more than {MAX_STRING_ESCAPES} escapes",
+            MAX_STRING_BYTES / 1024
+        ),
+    };
+    // Advance over b[i], keeping line and column.
+    macro_rules! step {
+        () => {{
+            if b[i] == b'\n' {
+                line += 1;
+                col = 1;
+            } else if b[i] & 0xC0 != 0x80 {
+                col += 1;
+            }
+            i += 1;
+        }};
+    }
+    while i < b.len() {
+        match b[i] {
+            b'/' if b.get(i + 1) == Some(&b'/') => {
+                while i < b.len() && b[i] != b'\n' {
+                    step!();
+                }
+            }
+            b'/' if b.get(i + 1) == Some(&b'*') => {
+                let mut depth = 0usize;
+                while i < b.len() {
+                    if b[i] == b'/' && b.get(i + 1) == Some(&b'*') {
+                        depth += 1;
+                        step!();
+                    } else if b[i] == b'*' && b.get(i + 1) == Some(&b'/') {
+                        depth -= 1;
+                        step!();
+                        if depth == 0 {
+                            step!();
+                            break;
+                        }
+                    }
+                    step!();
+                }
+            }
+            b'\'' => {
+                // A character literal: 'c' or '\x'.
+                step!();
+                if i < b.len() && b[i] == b'\\' {
+                    step!();
+                }
+                while i < b.len() && b[i] != b'\'' {
+                    step!();
+                }
+                if i < b.len() {
+                    step!();
+                }
+            }
+            b'r' if matches!(b.get(i + 1), Some(b'"') | Some(b'#')) => {
+                let (l0, c0, start) = (line, col, i);
+                step!();
+                let mut hashes = 0;
+                while i < b.len() && b[i] == b'#' {
+                    hashes += 1;
+                    step!();
+                }
+                if i < b.len() && b[i] == b'"' {
+                    step!();
+                    'raw: while i < b.len() {
+                        if b[i] == b'"'
+                            && b[i + 1..].iter().take(hashes).all(|c| *c == b'#')
+                            && i + hashes < b.len()
+                        {
+                            for _ in 0..=hashes {
+                                step!();
+                            }
+                            break 'raw;
+                        }
+                        step!();
+                    }
+                    if i - start > MAX_STRING_BYTES {
+                        return Err(too_long(l0, c0));
+                    }
+                }
+            }
+            b'"' => {
+                let (l0, c0, start) = (line, col, i);
+                let mut escapes = 0usize;
+                step!();
+                while i < b.len() && b[i] != b'"' {
+                    if b[i] == b'\\' && i + 1 < b.len() {
+                        escapes += 1;
+                        step!();
+                    }
+                    step!();
+                }
+                if i < b.len() {
+                    step!();
+                }
+                if i - start > MAX_STRING_BYTES || escapes > MAX_STRING_ESCAPES {
+                    return Err(too_long(l0, c0));
+                }
+            }
+            _ => step!(),
+        }
     }
     Ok(())
 }
 
 /// Parse design text; `path` names the file in messages, and its folder is where a relative
-/// kernel path is looked for.
+/// kernel path is looked for. Files larger than [`MAX_FILE_BYTES`] and strings longer than
+/// [`MAX_STRING_BYTES`] are refused before parsing, so parsing time is linear in the size.
 pub fn from_str(text: &str, path: &Path) -> Result<MissionDesign, FileError> {
-    if text.len() > 16 * 1024 * 1024 {
+    if text.len() as u64 > MAX_FILE_BYTES {
         return Err(FileError::Parse {
             path: path.into(),
             line: 1,
             column: 1,
-            reason: "file larger than 16 MiB; not a design file".into(),
+            reason: format!(
+                "file larger than {} MiB; not a design file",
+                MAX_FILE_BYTES / (1024 * 1024)
+            ),
         });
     }
+    check_strings(text, path)?;
     let opts = ron::Options::default().with_recursion_limit(64);
     let mut d: MissionDesign = opts.from_str(text).map_err(|e| FileError::Parse {
         path: path.into(),
@@ -326,6 +619,20 @@ pub fn from_str(text: &str, path: &Path) -> Result<MissionDesign, FileError> {
 
 /// Read a design file.
 pub fn load(path: &Path) -> Result<MissionDesign, FileError> {
+    // Refuse a huge file before reading it.
+    if let Ok(m) = fs::metadata(path) {
+        if m.len() > MAX_FILE_BYTES {
+            return Err(FileError::Parse {
+                path: path.into(),
+                line: 1,
+                column: 1,
+                reason: format!(
+                    "file larger than {} MiB; not a design file",
+                    MAX_FILE_BYTES / (1024 * 1024)
+                ),
+            });
+        }
+    }
     let text = fs::read_to_string(path).map_err(|e| FileError::Io {
         path: path.into(),
         source: e,
