@@ -278,18 +278,22 @@ pub fn check(
                 return Err(fail(NBodyError::Cancelled));
             }
             iterations += 1;
-            let mut jac = [[0.0; 3]; 3];
-            for j in 0..3 {
-                let mut dv = dv0;
-                dv[j] += h;
+            // The miss at the body's epoch for a departure correction `dv`.
+            let mut miss_for = |dv: Vec3| -> Result<Vec3, FidelityError> {
                 let s = State {
                     r: start.r,
                     v: start.v + dv,
                 };
-                let (end_j, _, ev) =
+                let (end, _, ev) =
                     fly_leg(tour, e, k, &s, &bodies, &sparse, cancel).map_err(fail)?;
                 out.evaluations += ev as u64;
-                let m_j = end_j.r - body_at.r;
+                Ok(end.r - body_at.r)
+            };
+            let mut jac = [[0.0; 3]; 3];
+            for j in 0..3 {
+                let mut dv = dv0;
+                dv[j] += h;
+                let m_j = miss_for(dv)?;
                 for i in 0..3 {
                     jac[i][j] = (m_j[i] - cur_miss[i]) / h;
                 }
@@ -308,14 +312,7 @@ pub fn check(
             let mut lambda = 1.0;
             loop {
                 let trial = dv0 + lambda * full;
-                let s = State {
-                    r: start.r,
-                    v: start.v + trial,
-                };
-                let (end_n, _, ev) =
-                    fly_leg(tour, e, k, &s, &bodies, &sparse, cancel).map_err(fail)?;
-                out.evaluations += ev as u64;
-                let m = end_n.r - body_at.r;
+                let m = miss_for(trial)?;
                 if m.norm() < cur_miss.norm() || lambda < 1.0 / 32.0 {
                     dv0 = trial;
                     cur_miss = m;

@@ -582,20 +582,24 @@ fn check_strings(text: &str, path: &Path) -> Result<(), FileError> {
     Ok(())
 }
 
+fn too_big(path: &Path) -> FileError {
+    FileError::Parse {
+        path: path.into(),
+        line: 1,
+        column: 1,
+        reason: format!(
+            "file larger than {} MiB; not a design file",
+            MAX_FILE_BYTES / (1024 * 1024)
+        ),
+    }
+}
+
 /// Parse design text; `path` names the file in messages, and its folder is where a relative
 /// kernel path is looked for. Files larger than [`MAX_FILE_BYTES`] and strings longer than
 /// [`MAX_STRING_BYTES`] are refused before parsing, so parsing time is linear in the size.
 pub fn from_str(text: &str, path: &Path) -> Result<MissionDesign, FileError> {
     if text.len() as u64 > MAX_FILE_BYTES {
-        return Err(FileError::Parse {
-            path: path.into(),
-            line: 1,
-            column: 1,
-            reason: format!(
-                "file larger than {} MiB; not a design file",
-                MAX_FILE_BYTES / (1024 * 1024)
-            ),
-        });
+        return Err(too_big(path));
     }
     check_strings(text, path)?;
     let opts = ron::Options::default().with_recursion_limit(64);
@@ -622,15 +626,7 @@ pub fn load(path: &Path) -> Result<MissionDesign, FileError> {
     // Refuse a huge file before reading it.
     if let Ok(m) = fs::metadata(path) {
         if m.len() > MAX_FILE_BYTES {
-            return Err(FileError::Parse {
-                path: path.into(),
-                line: 1,
-                column: 1,
-                reason: format!(
-                    "file larger than {} MiB; not a design file",
-                    MAX_FILE_BYTES / (1024 * 1024)
-                ),
-            });
+            return Err(too_big(path));
         }
     }
     let text = fs::read_to_string(path).map_err(|e| FileError::Io {
