@@ -2,7 +2,7 @@
 //! `tourwright-astro` (physics), `tourwright-mission` (designs and their evaluation) and
 //! `tourwright-search` (window maps, optimiser, explorer, direct-transfer search).
 //!
-//! Preliminary design only: patched conics with analytic ephemerides. Confirm every figure in
+//! Preliminary design only: patched conics and impulsive manoeuvres. Confirm every figure in
 //! high-fidelity, independently verified tools before any commitment.
 
 pub mod cli;

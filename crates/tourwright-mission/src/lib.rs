@@ -1,7 +1,7 @@
 //! The domain: a mission design (the file model), its edits, the prepared tour, what it implies
 //! (`evaluate`), launch and arrival figures, reports, files and exports. Knows nothing of search or of any user interface.
 //!
-//! Preliminary design only: patched conics with analytic ephemerides. Confirm every figure in
+//! Preliminary design only: patched conics and impulsive manoeuvres. Confirm every figure in
 //! high-fidelity, independently verified tools before any commitment.
 
 pub mod arrival;
@@ -28,6 +28,7 @@ pub use tour::{Body, Catalog, PreparedTour};
 pub const VERSION: &str = env!("CARGO_PKG_VERSION");
 
 /// The caution shown in the README, the CLI and the program's help.
-pub const CAUTION: &str = "Preliminary design only: patched conics and impulsive manoeuvres with \
-analytic ephemerides. Confirm every figure in high-fidelity, independently verified tools before any \
-commitment; flight operations follow the responsible agency's rules and licensed practice.";
+pub const CAUTION: &str = "Preliminary design only: patched conics and impulsive manoeuvres; the \
+n-body check is a first step, not a high-fidelity propagation. Confirm every figure in \
+high-fidelity, independently verified tools before any commitment; flight operations follow the \
+responsible agency's rules and licensed practice.";
