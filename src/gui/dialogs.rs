@@ -25,6 +25,8 @@ pub struct Dialogs {
     pub after_save: Option<Pending>,
     /// Autosaves an unclean exit left, offered for recovery.
     pub recovery: Vec<super::autosave::Recovered>,
+    /// The typed-path prompt already shown (its text field gets the focus when it opens).
+    prompt_shown: Option<PathPurpose>,
 }
 
 impl Dialogs {
@@ -93,6 +95,9 @@ impl Dialogs {
                     });
             });
         }
+        if self.path_prompt.is_none() {
+            self.prompt_shown = None;
+        }
         if let Some((purpose, text)) = &mut self.path_prompt {
             let purpose = *purpose;
             egui::Modal::new(egui::Id::unique("path")).show(ctx, |ui| {
@@ -106,6 +111,11 @@ impl Dialogs {
                 let r = ui
                     .add(egui::TextEdit::singleline(text).desired_width(480.0))
                     .labelled_by(lab.id);
+                if self.prompt_shown != Some(purpose) {
+                    // Just opened: the path can be typed at once.
+                    r.request_focus();
+                    self.prompt_shown = Some(purpose);
+                }
                 let enter = r.lost_focus() && ui.input(|i| i.key_pressed(Key::Enter));
                 ui.horizontal(|ui| {
                     if ui.button("OK").clicked() || enter {

@@ -694,10 +694,13 @@ impl Problem {
     }
 
     /// True when every constraint holds at `x` (the altitude within the program's tolerance).
+    /// Uses the workspace's constraint buffer (no allocation: the closing polish calls it per
+    /// evaluation).
     pub fn feasible(&self, x: &[f64], work: &mut Workspace) -> bool {
-        let mut g = vec![0.0; self.constraints.len()];
+        let mut g = std::mem::take(&mut work.g);
+        g.resize(self.constraints.len(), 0.0);
         let base = self.evaluate_parts(x, work, &mut g);
-        base < 1e9
+        let ok = base < 1e9
             && self.constraints.iter().zip(&g).all(|(c, gj)| match *c {
                 Constraint::Altitude { stop } => {
                     let s = &self.tour.stops[stop];
@@ -708,7 +711,9 @@ impl Problem {
                     *gj <= tourwright_mission::rules::SPEED_TOLERANCE_KM_S
                 }
                 _ => *gj <= 1e-9,
-            })
+            });
+        work.g = g;
+        ok
     }
 }
 
