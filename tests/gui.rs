@@ -915,3 +915,93 @@ fn an_out_of_range_edit_is_refused_beside_its_field() {
     h.run_steps(2);
     assert!(h.state().views.tour.refusal().is_none());
 }
+
+/// Wait for every running job to end (at most a minute).
+fn wait_for_jobs(h: &mut Harness<'static, TourwrightApp>) {
+    let t = std::time::Instant::now();
+    while !h.state().jobs.running.is_empty() && t.elapsed().as_secs() < 60 {
+        h.step();
+        std::thread::sleep(std::time::Duration::from_millis(10));
+    }
+    assert!(h.state().jobs.running.is_empty(), "a job did not end");
+    h.run_steps(2);
+}
+
+#[test]
+fn a_result_for_another_tour_is_refused_and_one_for_a_changed_tour_is_judged_first() {
+    use tourwright::gui::action::Action;
+    let mut h = harness(0);
+    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+    h.state_mut().views.search.evals = 60_000;
+    h.get_by_label("Optimise dates").click();
+    h.run_steps(1);
+    // While the result is pending, a body changes: the result is for another tour.
+    h.state_mut().apply(Action::Edit(Edit::SetBody {
+        stop: 2,
+        body: "Mars".into(),
+    }));
+    wait_for_jobs(&mut h);
+    assert!(h.state().jobs.optimum.is_some());
+    h.get_by_label_contains("cannot be applied");
+    assert!(
+        h.query_by_label_contains("Apply").is_none(),
+        "Apply offered"
+    );
+    // Back to the tour it was computed for, then a date moved: the result is judged on the
+    // design as it is now, before Apply.
+    menu(&mut h, "Edit", "Undo");
+    h.state_mut()
+        .apply(Action::Edit(Edit::ShiftEpoch { stop: 0, days: 3.0 }));
+    h.run_steps(3);
+    h.get_by_label_contains("The design changed since this search");
+    let schedule = h
+        .state()
+        .jobs
+        .optimum
+        .as_ref()
+        .unwrap()
+        .value
+        .schedule
+        .clone();
+    h.get_by_label_contains("Apply").click();
+    h.run_steps(3);
+    let d = h.state().design();
+    let epochs: Vec<_> = d.stops.iter().map(|s| s.epoch).collect();
+    assert_eq!(epochs, schedule.epochs);
+    // One undo step takes the result back off.
+    menu(&mut h, "Edit", "Undo");
+    assert_ne!(
+        h.state()
+            .design()
+            .stops
+            .iter()
+            .map(|s| s.epoch)
+            .collect::<Vec<_>>(),
+        schedule.epochs
+    );
+}
+
+#[test]
+fn the_search_panel_shows_and_edits_the_search_bounds() {
+    let mut h = harness(0);
+    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+    // Lantern sets its bounds: the first leg's shortest time of flight is 80 days.
+    let before = h.state().design().search.leg_tof[0];
+    assert_eq!(before.min_days, 80.0);
+    h.get_by_label("Use the default bounds").click();
+    h.run_steps(3);
+    let s = &h.state().design().search;
+    assert!(s.leg_tof.is_empty() && s.launch_earliest.is_none());
+    // The defaults are shown for what the search will use, marked as defaults.
+    assert!(
+        h.get_all_by_label_contains("(default)").count() >= 3,
+        "three legs"
+    );
+    h.get_by_label_contains("default window");
+    menu(&mut h, "Edit", "Undo");
+    assert_eq!(h.state().design().search.leg_tof[0], before);
+}

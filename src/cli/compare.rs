@@ -45,6 +45,7 @@ pub fn run(
                 "tof_days": c.hohmann.tof_days,
             },
             "summary": c.summary(),
+            "direct_breaks_launch_limits": c.limits_note(),
         });
         super::out(&serde_json::to_string_pretty(&v).map_err(|e| e.to_string())?);
     } else {
@@ -111,6 +112,9 @@ pub fn compare_text(c: &DirectComparison) -> String {
         "Hohmann (circular, coplanar): v∞ {:.3} km/s out, {:.3} km/s in, {:.1} days",
         h.vinf_depart, h.vinf_arrive, h.tof_days
     );
+    if let Some(note) = c.limits_note() {
+        let _ = writeln!(s, "{note}");
+    }
     let _ = writeln!(s, "{}", c.summary());
     let _ = writeln!(s, "{}", tourwright_mission::CAUTION);
     s

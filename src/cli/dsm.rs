@@ -22,15 +22,12 @@ pub fn run(
     let mut d = load(file)?;
     let k = leg.checked_sub(1).ok_or("--leg counts from 1")?;
     if k + 1 >= d.stops.len() {
-        return Err(format!(
-            "--leg {leg}: the design has {} legs",
-            d.stops.len() - 1
-        ));
+        return Err(format!("--leg {leg}: the design has {} legs", d.stops.len() - 1).into());
     }
     let fail = |e: tourwright_mission::EditError| format!("--leg {leg}: {e}");
     if remove {
         if d.leg(k).dsm.is_none() {
-            return Err(format!("--leg {leg}: the leg has no manoeuvre to remove"));
+            return Err(format!("--leg {leg}: the leg has no manoeuvre to remove").into());
         }
         Edit::SetDsm { leg: k, dsm: None }
             .apply(&mut d)
@@ -45,9 +42,9 @@ pub fn run(
         let mut m = d.leg(k).dsm.ok_or("the manoeuvre was not added")?;
         if let Some(f) = at {
             if !(f > 0.0 && f < 1.0) {
-                return Err(format!(
-                    "--at {f}: the fraction must lie strictly between 0 and 1"
-                ));
+                return Err(
+                    format!("--at {f}: the fraction must lie strictly between 0 and 1").into(),
+                );
             }
             m.at = DsmTime::Fraction(f);
         }
@@ -59,7 +56,8 @@ pub fn run(
                     "--date {text}: not inside leg {leg} ({} .. {})",
                     d.stops[k].epoch.to_date_utc(),
                     d.stops[k + 1].epoch.to_date_utc()
-                ));
+                )
+                .into());
             }
             m.at = DsmTime::Date(e);
         }

@@ -117,6 +117,8 @@ pub fn run(a: Args) -> CliResult {
         seed: a.seed,
         shard: a.shard.as_deref().map(parse_shard).transpose()?,
         dsm: a.dsm.into(),
+        // The template's spacecraft is a blank one, not the designer's: masses are not limits.
+        limits: tourwright_mission::LimitSet::TRAJECTORY,
     };
     let mut template = MissionDesign::new_blank();
     template.launch.max_c3_km2_s2 = a.max_c3;
@@ -169,23 +171,44 @@ fn print_table(ex: &Exploration) {
         ex.pruned.len(),
         ex.ranked.len()
     ));
+    let unit = ex.ranked.first().map(|c| c.objective.unit()).unwrap_or("");
     super::out(&format!(
-        "{:<4} {:<14} {:<11} {:>9} {:>9} {:>9} {:>10} limits",
-        "rank", "sequence", "launch", "TOF (d)", "C3", "Δv", "objective"
+        "{:<4} {:<14} {:<11} {:>9} {:>9} {:>9} {:>12} limits",
+        "rank",
+        "sequence",
+        "launch",
+        "TOF (d)",
+        "C3",
+        "Δv",
+        format!("obj. ({unit})")
     ));
     for (i, c) in ex.ranked.iter().enumerate() {
+        let limits = if c.feasible {
+            "met".to_string()
+        } else {
+            format!("broken: {}", c.breaches.join("; "))
+        };
         super::out(&format!(
-            "{:<4} {:<14} {:<11} {:>9.0} {:>9.2} {:>9.3} {:>10.4} {}",
+            "{:<4} {:<14} {:<11} {:>9.0} {:>9.2} {:>9.3} {:>12.4} {limits}",
             i + 1,
             c.label,
             c.launch.to_date_utc(),
             c.tof_days,
             c.c3,
             c.dv_km_s,
-            c.value,
-            if c.feasible { "met" } else { "broken" }
+            c.objective.display_value(c.value),
         ));
     }
+    if !ex.pruned.is_empty() {
+        super::out(&format!("pruned ({}):", ex.pruned.len()));
+        for (s, why) in &ex.pruned {
+            super::out(&format!("  {s}: {why}"));
+        }
+    }
+    super::out(
+        "Limits: swing-by altitude, v∞ and powered Δv, launch C3 and the total TOF; the \
+         spacecraft's masses are not checked (the explorer starts from a blank design).",
+    );
 }
 
 fn save_designs(ex: &Exploration, out: Option<&Path>) -> CliResult {

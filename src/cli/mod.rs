@@ -283,9 +283,12 @@ pub enum Command {
         /// Objective (default: the design's).
         #[arg(long, value_enum)]
         objective: Option<ObjectiveArg>,
-        /// Where to write the improved design.
+        /// Where to write the improved design (not the input file, unless --in-place).
         #[arg(long)]
         out: PathBuf,
+        /// Allow --out to name the input file and replace it.
+        #[arg(long)]
+        in_place: bool,
         /// Also write the TOF trade-off front as CSV.
         #[arg(long)]
         front: Option<PathBuf>,
@@ -346,8 +349,37 @@ pub enum Command {
     },
 }
 
-/// A failure of a command: one line for stderr.
-pub type CliResult = Result<(), String>;
+/// A failure of a command: one line for stderr (empty when the command already said everything on
+/// standard output) and the exit status.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct CliError {
+    /// The line for stderr.
+    pub message: String,
+    /// Exit status: 1 for bad input or a failure, 3 when a search found no design meeting every
+    /// limit.
+    pub status: i32,
+}
+
+/// Exit status of a search that found no design meeting every limit.
+pub const EXIT_NO_FEASIBLE: i32 = 3;
+
+impl From<String> for CliError {
+    fn from(message: String) -> Self {
+        CliError { message, status: 1 }
+    }
+}
+
+impl From<&str> for CliError {
+    fn from(message: &str) -> Self {
+        CliError {
+            message: message.to_string(),
+            status: 1,
+        }
+    }
+}
+
+/// The outcome of a command.
+pub type CliResult = Result<(), CliError>;
 
 /// Run a parsed command line (not `gui`, which the binary handles).
 pub fn run(cmd: Command) -> CliResult {
@@ -441,8 +473,11 @@ pub fn run(cmd: Command) -> CliResult {
             evals,
             objective,
             out,
+            in_place,
             front,
-        } => optimize::run(&file, ephemeris, seed, time, evals, objective, &out, front),
+        } => optimize::run(
+            &file, ephemeris, seed, time, evals, objective, &out, in_place, front,
+        ),
         Command::Explore {
             from,
             ephemeris,
@@ -509,8 +544,29 @@ pub(crate) fn out(text: &str) {
     }
 }
 
+/// True when `a` and `b` name the same existing file (through links and relative paths).
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (std::fs::canonicalize(a), std::fs::canonicalize(b)) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => false,
+    }
+}
+
+/// Refuse to write `output` when it is the command's `input` (unless `allowed`): a command never
+/// writes over what it reads without being asked.
+fn refuse_overwrite(input: &Path, output: &Path, allowed: bool, flag: &str) -> CliResult {
+    if !allowed && same_file(input, output) {
+        return Err(format!(
+            "{flag} {} is the input file; write elsewhere, or pass --in-place to replace it",
+            output.display()
+        )
+        .into());
+    }
+    Ok(())
+}
+
 fn write(path: &Path, text: &str) -> CliResult {
-    std::fs::write(path, text).map_err(|e| format!("{}: {e}", path.display()))
+    std::fs::write(path, text).map_err(|e| format!("{}: {e}", path.display()).into())
 }
 
 fn range(text: &str, what: &str) -> Result<(String, String), String> {

@@ -49,7 +49,7 @@ pub fn run(
             let span = (b.tdb().0 - a.tdb().0) / 86_400.0;
             let n = (span / step).floor() as usize + 1;
             if n > MAX_ROWS {
-                return Err(format!("--step: {n} rows is more than {MAX_ROWS}"));
+                return Err(format!("--step: {n} rows is more than {MAX_ROWS}").into());
             }
             (0..n).map(|i| a.plus_days(step * i as f64)).collect()
         }

@@ -39,7 +39,7 @@ pub fn run(
             .parse()
             .map_err(|_| format!("--vinf: '{}' is not a number", v.trim()))?;
         if !(x.is_finite() && x > 0.0 && x < 100.0) {
-            return Err(format!("--vinf: {x} km/s must lie in (0, 100)"));
+            return Err(format!("--vinf: {x} km/s must lie in (0, 100)").into());
         }
         levels.push(x);
     }

@@ -246,6 +246,7 @@ impl TourwrightApp {
         self.refresh();
         self.views.window.reset_from_design(self.doc.design(), 0);
         self.views.tour.forget_edits();
+        self.views.search.forget_edits();
     }
 
     /// Replace the document (New, Open, a sample, an explorer row): running jobs are cancelled
@@ -329,10 +330,12 @@ impl TourwrightApp {
             Action::Undo => {
                 self.doc.undo();
                 self.views.tour.forget_edits();
+                self.views.search.forget_edits();
             }
             Action::Redo => {
                 self.doc.redo();
                 self.views.tour.forget_edits();
+                self.views.search.forget_edits();
             }
             Action::Select(k) => self.selected = k,
             Action::Request(p) => {

@@ -117,6 +117,9 @@ fn direct_result(ui: &mut egui::Ui, c: &DirectComparison, stale: bool) -> bool {
         ui.label(RichText::new("(for an earlier version of the design; updating)").weak());
     }
     let (t, dd) = (&c.tour_eval, &c.direct_eval);
+    if let Some(note) = c.limits_note() {
+        ui.label(RichText::new(note).color(super::style::warn_color(ui.visuals().dark_mode)));
+    }
     ui.label(RichText::new(c.summary()).heading());
     egui::Grid::new("dva")
         .striped(true)

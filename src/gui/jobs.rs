@@ -10,7 +10,7 @@ use tourwright_mission::fidelity::{self, Fidelity, FidelityOptions};
 use tourwright_mission::{MissionDesign, PreparedTour};
 use tourwright_search::direct::{self, DirectComparison};
 use tourwright_search::explore::{self, Exploration};
-use tourwright_search::optimize::{self, OptimizeResult, Problem};
+use tourwright_search::optimize::{self, SearchOutcome};
 use tourwright_search::window::{self, WindowMap};
 use tourwright_search::{Job, JobStatus, Progress};
 
@@ -19,7 +19,7 @@ use super::action::{JobKind, JobRequest};
 enum Handle {
     Direct(Job<Option<DirectComparison>>),
     Window(Job<Result<WindowMap, String>>),
-    Optimize(Job<Result<OptimizeResult, String>>),
+    Optimize(Job<Result<SearchOutcome, String>>),
     Explore(Job<Exploration>),
     Fidelity(Job<Result<Fidelity, String>>),
 }
@@ -70,8 +70,8 @@ pub struct Jobs {
     pub running: Vec<Running>,
     /// The latest direct-vs-assist comparison.
     pub direct: Option<ForRevision<DirectComparison>>,
-    /// The latest optimiser result.
-    pub optimum: Option<ForRevision<OptimizeResult>>,
+    /// The latest optimiser outcome.
+    pub optimum: Option<ForRevision<SearchOutcome>>,
     /// The latest exploration.
     pub exploration: Option<Exploration>,
     /// The latest n-body fidelity check.
@@ -131,8 +131,8 @@ impl Jobs {
             JobRequest::Optimize(o, objective) => Handle::Optimize(Job::spawn(label, move |p| {
                 let mut d = d;
                 d.search.objective = objective;
-                let problem = Problem::from_design(&d).map_err(|e| e.to_string())?;
-                Ok(optimize::optimize(&problem, &o, &p, true))
+                optimize::search_design(&d, &o, tourwright_mission::LimitSet::ALL, &p, true)
+                    .map_err(|e| e.to_string())
             })),
             JobRequest::Explore(spec) => Handle::Explore(Job::spawn(label, move |p| {
                 let mut template = d;
@@ -219,12 +219,19 @@ impl Jobs {
                     JobStatus::Running => None,
                     JobStatus::Done(Ok(res)) => {
                         if current {
+                            let what = if res.cancelled {
+                                "optimiser cancelled; best so far"
+                            } else {
+                                "optimiser finished"
+                            };
                             out.push(Finished::Message(
                                 format!(
-                                    "optimiser finished: {:.4} after {} evaluations",
-                                    res.value, res.evaluations
+                                    "{what}: {}, {} ({} evaluations)",
+                                    res.result.value_text(),
+                                    res.result.limits_text(),
+                                    res.evaluations
                                 ),
-                                false,
+                                !res.result.feasible(),
                             ));
                             self.optimum = Some(ForRevision {
                                 value: res,

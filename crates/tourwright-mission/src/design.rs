@@ -9,8 +9,6 @@ use tourwright_astro::ephemeris::OsculatingElements;
 use tourwright_astro::lambert::{Branch, Direction};
 use tourwright_astro::time::Epoch;
 
-pub use crate::score::Objective;
-
 /// The `format` tag every design file carries.
 pub const FORMAT_TAG: &str = "tourwright-design";
 /// The newest file version this program writes and reads.
@@ -55,6 +53,92 @@ pub struct MissionDesign {
     /// Which ephemeris model gives the planets' states and constants.
     #[serde(default, skip_serializing_if = "EphemerisChoice::is_default")]
     pub ephemeris: EphemerisChoice,
+}
+
+/// A figure of merit of a tour: what a search minimises and what the direct-transfer comparison
+/// ranks by. How it is read off an evaluation is in `score.rs`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default, Hash)]
+pub enum Objective {
+    /// Launch v∞ plus every spacecraft Δv (the usual multiple-gravity-assist measure), km/s.
+    #[default]
+    TotalDvWithLaunchVinf,
+    /// Spacecraft Δv only, with C3 held under the design's limit, km/s.
+    SpacecraftDv,
+    /// Mass delivered with the launch vehicle (maximised), kg.
+    DeliveredMass,
+    /// Launch C3 (minimised), km²/s².
+    LaunchC3,
+    /// Total time of flight (minimised), days.
+    TimeOfFlight,
+}
+
+impl Objective {
+    /// Every objective, for menus.
+    pub const ALL: [Objective; 5] = [
+        Objective::TotalDvWithLaunchVinf,
+        Objective::SpacecraftDv,
+        Objective::DeliveredMass,
+        Objective::LaunchC3,
+        Objective::TimeOfFlight,
+    ];
+
+    /// Words for tables and menus.
+    pub fn label(self) -> &'static str {
+        match self {
+            Objective::TotalDvWithLaunchVinf => "launch v∞ + spacecraft Δv",
+            Objective::SpacecraftDv => "spacecraft Δv",
+            Objective::DeliveredMass => "delivered mass",
+            Objective::LaunchC3 => "launch C3",
+            Objective::TimeOfFlight => "time of flight",
+        }
+    }
+
+    /// Unit of the value as a designer reads it.
+    pub fn unit(self) -> &'static str {
+        match self {
+            Objective::TotalDvWithLaunchVinf | Objective::SpacecraftDv => "km/s",
+            Objective::DeliveredMass => "kg",
+            Objective::LaunchC3 => "km²/s²",
+            Objective::TimeOfFlight => "days",
+        }
+    }
+
+    /// Decimals that show the value to its useful precision.
+    pub fn decimals(self) -> usize {
+        match self {
+            Objective::TotalDvWithLaunchVinf | Objective::SpacecraftDv => 4,
+            Objective::DeliveredMass => 1,
+            Objective::LaunchC3 => 3,
+            Objective::TimeOfFlight => 2,
+        }
+    }
+
+    /// True when a launch vehicle table is needed.
+    pub fn needs_vehicle(self) -> bool {
+        self == Objective::DeliveredMass
+    }
+
+    /// The score as a designer reads it (delivered mass positive again).
+    pub fn display_value(self, score: f64) -> f64 {
+        if self == Objective::DeliveredMass {
+            -score
+        } else {
+            score
+        }
+    }
+
+    /// A score as text with its unit, e.g. `7.8852 km/s`.
+    pub fn text(self, score: f64) -> String {
+        if !score.is_finite() {
+            return "no value (the tour cannot be evaluated)".into();
+        }
+        format!(
+            "{:.*} {}",
+            self.decimals(),
+            self.display_value(score),
+            self.unit()
+        )
+    }
 }
 
 /// The ephemeris model a design uses.

@@ -7,7 +7,7 @@ use tourwright_astro::time::Epoch;
 
 use crate::design::{
     ArrivalGoal, Dsm, EphemerisChoice, LaunchLimits, LaunchVehicle, LaunchVinf, LegOptions,
-    MissionDesign, Objective, Spacecraft, Stop, SwingbyMode,
+    MissionDesign, Objective, SearchBounds, Spacecraft, Stop, SwingbyMode, UserBody,
 };
 use crate::evaluate::Evaluation;
 
@@ -21,6 +21,90 @@ pub struct Schedule {
     pub legs: Vec<LegOptions>,
     /// Per stop: the swing-by mode found (shaped swing-bys that start a manoeuvre leg).
     pub modes: Vec<Option<SwingbyMode>>,
+}
+
+impl Schedule {
+    /// Everything a search may change in `d`, as it stands: the schedule that, applied to `d`,
+    /// leaves it unchanged.
+    pub fn of(d: &MissionDesign) -> Schedule {
+        let n = d.stops.len();
+        Schedule {
+            epochs: d.stops.iter().map(|s| s.epoch).collect(),
+            legs: (0..n.saturating_sub(1)).map(|k| d.leg(k)).collect(),
+            modes: d
+                .stops
+                .iter()
+                .enumerate()
+                .map(|(k, s)| (k > 0 && k + 1 < n).then_some(s.swingby.mode))
+                .collect(),
+        }
+    }
+}
+
+/// What a search result depends on beyond its dates: the bodies in order, which swing-bys are
+/// shaped, which legs carry a manoeuvre, the ephemeris and the user bodies. A result computed
+/// for one shape of tour cannot be applied to another.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TourShape {
+    /// Body names in order.
+    pub bodies: Vec<String>,
+    /// Per stop: a shaped swing-by.
+    pub shaped: Vec<bool>,
+    /// Per leg: a deep-space manoeuvre.
+    pub dsm: Vec<bool>,
+    /// The ephemeris model.
+    pub ephemeris: EphemerisChoice,
+    /// The user bodies.
+    pub user_bodies: Vec<UserBody>,
+}
+
+impl TourShape {
+    /// The shape of a design.
+    pub fn of(d: &MissionDesign) -> TourShape {
+        TourShape {
+            bodies: d.stops.iter().map(|s| s.body.clone()).collect(),
+            shaped: d
+                .stops
+                .iter()
+                .map(|s| matches!(s.swingby.mode, SwingbyMode::Shaped { .. }))
+                .collect(),
+            dsm: (0..d.stops.len().saturating_sub(1))
+                .map(|k| d.leg(k).dsm.is_some())
+                .collect(),
+            ephemeris: d.ephemeris.clone(),
+            user_bodies: d.user_bodies.clone(),
+        }
+    }
+
+    /// Why a result for `self` does not fit a design of shape `now`, in words; `None` when it
+    /// fits.
+    pub fn mismatch(&self, now: &TourShape) -> Option<String> {
+        let seq = |b: &[String]| b.join("-");
+        if self.bodies != now.bodies {
+            return Some(format!(
+                "it was computed for the tour {} and the tour is now {}",
+                seq(&self.bodies),
+                seq(&now.bodies)
+            ));
+        }
+        if self.shaped != now.shaped {
+            return Some("a swing-by changed between targeted and shaped since".into());
+        }
+        if self.dsm != now.dsm {
+            return Some("a deep-space manoeuvre was added or removed since".into());
+        }
+        if self.ephemeris != now.ephemeris {
+            return Some(format!(
+                "it was computed with {} and the design now uses {}",
+                self.ephemeris.label(),
+                now.ephemeris.label()
+            ));
+        }
+        if self.user_bodies != now.user_bodies {
+            return Some("the user bodies changed since".into());
+        }
+        None
+    }
 }
 
 /// One change to a design.
@@ -123,6 +207,9 @@ pub enum Edit {
     SetVehicle(Option<LaunchVehicle>),
     /// Set the search objective.
     SetObjective(Objective),
+    /// Set the search bounds (launch window, legs' times of flight, total time of flight) and
+    /// objective.
+    SetSearch(SearchBounds),
     /// Choose the ephemeris model.
     SetEphemeris(EphemerisChoice),
     /// Replace the whole design.
@@ -182,6 +269,7 @@ impl Edit {
             Edit::SetSpacecraft(_) => "spacecraft",
             Edit::SetVehicle(_) => "launch vehicle",
             Edit::SetObjective(_) => "objective",
+            Edit::SetSearch(_) => "search bounds",
             Edit::SetEphemeris(_) => "ephemeris",
             Edit::Replace(_) => "replace design",
         }
@@ -389,6 +477,14 @@ impl Edit {
             Edit::SetSpacecraft(s) => d.spacecraft = s,
             Edit::SetVehicle(v) => d.launch_vehicle = v,
             Edit::SetObjective(o) => d.search.objective = o,
+            Edit::SetSearch(s) => {
+                if s.leg_tof.len() + 1 > n {
+                    return Err(EditError::Epochs(
+                        "the stops changed since those bounds were set",
+                    ));
+                }
+                d.search = s
+            }
             Edit::SetEphemeris(e) => {
                 // A kernel is opened and checked before the design changes.
                 let mut probe = d.clone();

@@ -44,20 +44,7 @@ pub enum FileError {
     },
 }
 
-/// A validation problem, before a path is attached.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Invalid {
-    /// The field.
-    pub field: String,
-    /// Why.
-    pub reason: String,
-}
-
-impl std::fmt::Display for Invalid {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        write!(f, "{}: {}", self.field, self.reason)
-    }
-}
+pub use crate::invalid::Invalid;
 
 fn bad(field: impl Into<String>, reason: impl Into<String>) -> Invalid {
     Invalid {

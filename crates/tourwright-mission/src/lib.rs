@@ -11,6 +11,7 @@ pub mod evaluate;
 pub mod export;
 pub mod fidelity;
 pub mod files;
+pub mod invalid;
 pub mod launch;
 pub mod report;
 pub mod retarget;
@@ -19,9 +20,9 @@ pub mod score;
 pub mod tour;
 
 pub use design::MissionDesign;
-pub use edit::{Edit, EditError, Schedule};
+pub use edit::{Edit, EditError, Schedule, TourShape};
 pub use evaluate::{EvalOptions, Evaluation, evaluate, evaluate_design};
-pub use score::Objective;
+pub use score::{Assessment, LimitSet, Objective};
 pub use tour::{Body, Catalog, PreparedTour};
 
 /// The program's version (one version for the whole workspace).

@@ -4,17 +4,19 @@
 
 use nalgebra::{Matrix3, Vector3};
 
-use tourwright_astro::Vec3;
+use tourwright_astro::bodies::BodyData;
 use tourwright_astro::constants::DAY_S;
 use tourwright_astro::flyby;
 use tourwright_astro::lambert;
 use tourwright_astro::time::Epoch;
+use tourwright_astro::time::Tdb;
+use tourwright_astro::{State, Vec3};
 
 use crate::design::{MissionDesign, SwingbyMode};
 use crate::evaluate::legs::{ballistic_arrival, shaped_vinf_out};
 use crate::evaluate::{EvalOptions, Evaluation, evaluate};
 use crate::rules;
-use crate::tour::PreparedTour;
+use crate::tour::{Body, PreparedTour};
 
 /// Why a retarget failed.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
@@ -74,105 +76,24 @@ pub fn retarget(
     }
     let data = tour.stops[k].body.data;
     let next = &tour.stops[k + 1].body;
-    let vin = e.stops[k].vinf_in;
-    let planet = e.stops[k].body_state;
-    let t_k = tour.stops[k].t;
-    let tof0 = tour.stops[k + 1].t.0 - t_k.0;
-
-    // Miss vector for (altitude km, aim deg, tof s).
-    let miss = |x: &[f64; 3]| -> Option<Vec3> {
-        if data.radius_km + x[0] <= 0.0 || x[2] <= 0.0 {
-            return None;
-        }
-        let vout = shaped_vinf_out(&data, &vin, x[0], x[1]);
-        let end = ballistic_arrival(&planet, &vout, x[2], tour.mu_sun).ok()?;
-        let target = next.state(t_k.plus_days(x[2] / DAY_S)).ok()?;
-        let m = end.r - target.r;
-        m.iter().all(|c| c.is_finite()).then_some(m)
-    };
-
-    // Starting point: the ballistic swing-by that best matches the Lambert arc's required v∞.
-    let mut x = [altitude_km, aim_deg, tof0];
-    if let Ok(target) = next.state(tour.stops[k + 1].t) {
-        let dir = tour.legs[k].direction;
-        if let Ok(s) = lambert::solve_single(&planet.r, &target.r, tof0, tour.mu_sun, dir) {
-            let vreq = s.v1 - planet.v;
-            let turn = (vin.dot(&vreq) / (vin.norm() * vreq.norm()))
-                .clamp(-1.0, 1.0)
-                .acos();
-            if let Some(rp) = flyby::periapsis_for_turn(turn, vin.norm(), data.mu) {
-                let bp = flyby::b_plane(&vin, &vreq, rp, data.mu);
-                let guess = [
-                    (rp - data.radius_km).max(-0.5 * data.radius_km),
-                    bp.aim.to_degrees(),
-                    tof0,
-                ];
-                let cur = miss(&x).map_or(f64::INFINITY, |m| m.norm());
-                if miss(&guess).map_or(f64::INFINITY, |m| m.norm()) < cur {
-                    x = guess;
-                }
-            }
-        }
-    }
-    let nv = if move_epoch { 3 } else { 2 };
-    let scale = [data.radius_km.max(1.0), 1.0, DAY_S];
-    let mut lambda = 1e-3;
-    let mut cur = miss(&x).ok_or(RetargetError::NoConvergence(f64::INFINITY))?;
-    for _ in 0..100 {
-        if cur.norm() < 1.0 {
-            break;
-        }
-        // Jacobian by central differences in scaled variables.
-        let mut j = Matrix3::<f64>::zeros();
-        let mut ok = true;
-        for c in 0..nv {
-            let h = 1e-6 * scale[c].max(x[c].abs() * 1e-3);
-            let (mut xp, mut xm) = (x, x);
-            xp[c] += h;
-            xm[c] -= h;
-            let (Some(fp), Some(fm)) = (miss(&xp), miss(&xm)) else {
-                ok = false;
-                break;
-            };
-            j.set_column(c, &((fp - fm) / (2.0 * h) * scale[c]));
-        }
-        if !ok {
-            break;
-        }
-        let f = Vector3::from(cur);
-        let jt = j.transpose();
-        let mut improved = false;
-        for _ in 0..12 {
-            let mut a = jt * j;
-            for c in 0..3 {
-                if c < nv {
-                    a[(c, c)] = a[(c, c)] * (1.0 + lambda) + 1e-12;
-                } else {
-                    a[(c, c)] = 1.0;
-                }
-            }
-            let Some(step) = a.lu().solve(&(-(jt * f))) else {
-                break;
-            };
-            let mut xn = x;
-            for c in 0..nv {
-                xn[c] += step[c] * scale[c];
-            }
-            if let Some(m) = miss(&xn) {
-                if m.norm() < cur.norm() {
-                    x = xn;
-                    cur = m;
-                    lambda = (lambda * 0.3).max(1e-9);
-                    improved = true;
-                    break;
-                }
-            }
-            lambda *= 10.0;
-        }
-        if !improved {
-            break;
-        }
-    }
+    let tof0 = tour.stops[k + 1].t.0 - tour.stops[k].t.0;
+    let (x, cur, _) = meet_next_body(
+        &ShapedLeg {
+            body: &data,
+            vinf_in: e.stops[k].vinf_in,
+            planet: e.stops[k].body_state,
+            t: tour.stops[k].t,
+            next,
+            mu_sun: tour.mu_sun,
+            direction: tour.legs[k].direction,
+        },
+        [altitude_km, aim_deg, tof0],
+        move_epoch,
+        100,
+        1.0,
+        false,
+    )
+    .ok_or(RetargetError::NoConvergence(f64::INFINITY))?;
     if cur.norm() > rules::retarget_tolerance_km(&next.data) {
         return Err(RetargetError::NoConvergence(cur.norm()));
     }
@@ -195,4 +116,159 @@ pub fn retarget(
 
 fn shift_epoch(e: Epoch, seconds: f64) -> Epoch {
     e.plus_seconds(seconds)
+}
+
+/// A first miss above which [`meet_next_body`] tries its guesses, km (ours).
+const GUESS_KM: f64 = 1.0e4;
+
+/// A shaped swing-by and the ballistic leg after it, as [`meet_next_body`] needs them.
+#[derive(Clone, Copy, Debug)]
+pub struct ShapedLeg<'a> {
+    /// The swing-by body's constants.
+    pub body: &'a BodyData,
+    /// v∞ arriving at the swing-by, km/s.
+    pub vinf_in: Vec3,
+    /// The swing-by body's heliocentric state at the swing-by.
+    pub planet: State,
+    /// Epoch of the swing-by.
+    pub t: Tdb,
+    /// The body the ballistic leg must meet.
+    pub next: &'a Body,
+    /// μ of the Sun in the model, km³/s².
+    pub mu_sun: f64,
+    /// Sense of motion of the leg (for the first guess).
+    pub direction: tourwright_astro::lambert::Direction,
+}
+
+/// The periapsis altitude (km), B-plane aim (degrees) and time of flight (s) that make the
+/// ballistic leg after a shaped swing-by meet the next body, from `x0`: Levenberg-Marquardt on
+/// the miss vector, at most `max_iter` iterations (each 7 propagations at most), after trying
+/// the swing-by that best matches a single-revolution Lambert arc as the first guess. With
+/// `move_epoch` false the time of flight stays. It stops once the miss is below `tol_km`, and
+/// with `quick` also once an iteration gains less than a tenth (a search's repeated solves).
+/// Returns the point, the miss vector left (km) and the iterations spent, or `None` when the
+/// leg cannot be propagated from `x0`.
+pub fn meet_next_body(
+    leg: &ShapedLeg<'_>,
+    x0: [f64; 3],
+    move_epoch: bool,
+    max_iter: usize,
+    tol_km: f64,
+    quick: bool,
+) -> Option<([f64; 3], Vec3, usize)> {
+    let data = leg.body;
+    let next = leg.next;
+    let vin = leg.vinf_in;
+    let planet = leg.planet;
+    let t_k = leg.t;
+    let tof0 = x0[2];
+    let mu_sun = leg.mu_sun;
+
+    // Miss vector for (altitude km, aim deg, tof s).
+    let miss = |x: &[f64; 3]| -> Option<Vec3> {
+        if data.radius_km + x[0] <= 0.0 || x[2] <= 0.0 {
+            return None;
+        }
+        let vout = shaped_vinf_out(data, &vin, x[0], x[1]);
+        let end = ballistic_arrival(&planet, &vout, x[2], mu_sun).ok()?;
+        let target = next.state(t_k.plus_days(x[2] / DAY_S)).ok()?;
+        let m = end.r - target.r;
+        m.iter().all(|c| c.is_finite()).then_some(m)
+    };
+
+    // Starting point: `x0`, or when it misses by more than GUESS_KM the ballistic swing-by that
+    // best matches the Lambert arc's required v∞, if that misses less.
+    let mut x = x0;
+    let best = miss(&x).map_or(f64::INFINITY, |m| m.norm());
+    if let Ok(target) = next
+        .state(t_k.plus_days(tof0 / DAY_S))
+        .ok()
+        .filter(|_| best > GUESS_KM)
+        .ok_or(())
+    {
+        if let Ok(s) = lambert::solve_single(&planet.r, &target.r, tof0, mu_sun, leg.direction) {
+            let vreq = s.v1 - planet.v;
+            let turn = (vin.dot(&vreq) / (vin.norm() * vreq.norm()))
+                .clamp(-1.0, 1.0)
+                .acos();
+            if let Some(rp) = flyby::periapsis_for_turn(turn, vin.norm(), data.mu) {
+                let bp = flyby::b_plane(&vin, &vreq, rp, data.mu);
+                let guess = [
+                    (rp - data.radius_km).max(-0.5 * data.radius_km),
+                    bp.aim.to_degrees(),
+                    tof0,
+                ];
+                if miss(&guess).map_or(f64::INFINITY, |m| m.norm()) < best {
+                    x = guess;
+                }
+            }
+        }
+    }
+    let nv = if move_epoch { 3 } else { 2 };
+    let scale = [data.radius_km.max(1.0), 1.0, DAY_S];
+    let mut lambda = 1e-3;
+    let mut cur = miss(&x)?;
+    let mut iters = 0;
+    for _ in 0..max_iter {
+        if cur.norm() < tol_km {
+            break;
+        }
+        iters += 1;
+        // Jacobian by central differences in scaled variables.
+        let mut j = Matrix3::<f64>::zeros();
+        let mut ok = true;
+        for c in 0..nv {
+            let h = 1e-6 * scale[c].max(x[c].abs() * 1e-3);
+            let (mut xp, mut xm) = (x, x);
+            xp[c] += h;
+            xm[c] -= h;
+            let (Some(fp), Some(fm)) = (miss(&xp), miss(&xm)) else {
+                ok = false;
+                break;
+            };
+            j.set_column(c, &((fp - fm) / (2.0 * h) * scale[c]));
+        }
+        if !ok {
+            break;
+        }
+        let f = Vector3::from(cur);
+        let jt = j.transpose();
+        let mut improved = false;
+        let mut slow = false;
+        for _ in 0..12 {
+            let mut a = jt * j;
+            for c in 0..3 {
+                if c < nv {
+                    a[(c, c)] = a[(c, c)] * (1.0 + lambda) + 1e-12;
+                } else {
+                    a[(c, c)] = 1.0;
+                }
+            }
+            let Some(step) = a.lu().solve(&(-(jt * f))) else {
+                break;
+            };
+            let mut xn = x;
+            for c in 0..nv {
+                xn[c] += step[c] * scale[c];
+            }
+            if let Some(m) = miss(&xn) {
+                if m.norm() < cur.norm() {
+                    // Progress of less than a tenth per iteration: a resonant return's solutions
+                    // form a family (any crank angle), the miss falls no further than second
+                    // order allows, and another iteration buys little.
+                    slow = quick && m.norm() > 0.9 * cur.norm();
+                    x = xn;
+                    cur = m;
+                    lambda = (lambda * 0.3).max(1e-9);
+                    improved = true;
+                    break;
+                }
+            }
+            lambda *= 10.0;
+        }
+        if !improved || slow {
+            break;
+        }
+    }
+    Some((x, cur, iters))
 }

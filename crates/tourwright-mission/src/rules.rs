@@ -23,6 +23,10 @@ pub const ALTITUDE_TOLERANCE_KM: f64 = 1e-3;
 /// 1 mm/s, the rounding of a search that lands on the limit from either side.
 pub const SPEED_TOLERANCE_KM_S: f64 = 1e-6;
 
+/// A total time of flight this far over its limit still counts as meeting it, days (a
+/// microsecond: the rounding of epochs written to a file).
+pub const TOF_TOLERANCE_DAYS: f64 = 1e-6 / 86_400.0;
+
 /// The smallest "sphere" a ballistic leg must reach at its next body, km: bodies without a
 /// sphere of influence (massless user bodies) still need a finite target.
 pub const MIN_ARRIVAL_SPHERE_KM: f64 = 1.0e4;

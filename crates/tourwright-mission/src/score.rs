@@ -1,62 +1,14 @@
-//! The one scoring type: what a search minimises and what the direct-transfer comparison ranks
-//! by. Every value is "smaller is better" (delivered mass is negated).
+//! Scoring: how an [`Objective`] is read off an evaluation, and the [`Assessment`] of a design —
+//! its objective exactly as `eval` computes it and every limit it breaks. The optimiser, the
+//! explorer, the direct-transfer comparison, the CLI and the workbench all judge designs through
+//! this one place, so "meets every limit" means the same everywhere. Every value is "smaller is
+//! better" (delivered mass is negated).
 
-use serde::{Deserialize, Serialize};
+use crate::evaluate::{Evaluation, Warning};
 
-use crate::evaluate::Evaluation;
-
-/// A figure of merit of an evaluated tour.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default, Hash)]
-pub enum Objective {
-    /// Launch v∞ plus every spacecraft Δv (the usual multiple-gravity-assist measure), km/s.
-    #[default]
-    TotalDvWithLaunchVinf,
-    /// Spacecraft Δv only, with C3 held under the design's limit, km/s.
-    SpacecraftDv,
-    /// Mass delivered with the launch vehicle (maximised), kg.
-    DeliveredMass,
-    /// Launch C3 (minimised), km²/s².
-    LaunchC3,
-    /// Total time of flight (minimised), days.
-    TimeOfFlight,
-}
+pub use crate::design::Objective;
 
 impl Objective {
-    /// Every objective, for menus.
-    pub const ALL: [Objective; 5] = [
-        Objective::TotalDvWithLaunchVinf,
-        Objective::SpacecraftDv,
-        Objective::DeliveredMass,
-        Objective::LaunchC3,
-        Objective::TimeOfFlight,
-    ];
-
-    /// Words for tables and menus.
-    pub fn label(self) -> &'static str {
-        match self {
-            Objective::TotalDvWithLaunchVinf => "launch v∞ + spacecraft Δv",
-            Objective::SpacecraftDv => "spacecraft Δv",
-            Objective::DeliveredMass => "delivered mass",
-            Objective::LaunchC3 => "launch C3",
-            Objective::TimeOfFlight => "time of flight",
-        }
-    }
-
-    /// Unit of [`Objective::display_value`].
-    pub fn unit(self) -> &'static str {
-        match self {
-            Objective::TotalDvWithLaunchVinf | Objective::SpacecraftDv => "km/s",
-            Objective::DeliveredMass => "kg",
-            Objective::LaunchC3 => "km²/s²",
-            Objective::TimeOfFlight => "days",
-        }
-    }
-
-    /// True when a launch vehicle table is needed.
-    pub fn needs_vehicle(self) -> bool {
-        self == Objective::DeliveredMass
-    }
-
     /// Score of an evaluation (smaller is better; delivered mass negated). Incomplete
     /// evaluations score `f64::INFINITY`.
     pub fn value(self, e: &Evaluation) -> f64 {
@@ -72,13 +24,142 @@ impl Objective {
         };
         if v.is_finite() { v } else { f64::INFINITY }
     }
+}
 
-    /// The score as a designer reads it (delivered mass positive again).
-    pub fn display_value(self, score: f64) -> f64 {
-        if self == Objective::DeliveredMass {
-            -score
-        } else {
-            score
+/// Which limits an assessment holds a design to.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct LimitSet {
+    /// Hold the spacecraft's masses as limits (propellant, launch-vehicle capacity, C3 inside
+    /// the vehicle's table). Off only where the masses are not the designer's (a survey from a
+    /// blank template).
+    pub masses: bool,
+}
+
+impl Default for LimitSet {
+    fn default() -> Self {
+        LimitSet { masses: true }
+    }
+}
+
+impl LimitSet {
+    /// Every limit of the design.
+    pub const ALL: LimitSet = LimitSet { masses: true };
+    /// Every limit except the spacecraft's masses.
+    pub const TRAJECTORY: LimitSet = LimitSet { masses: false };
+
+    /// True when `w` is a limit of this set that the design breaks, or a failure to evaluate.
+    pub fn counts(&self, w: &Warning) -> bool {
+        w.is_failure() || (w.is_limit() && (self.masses || !w.is_mass_limit()))
+    }
+}
+
+/// A design judged: its objective and every limit it breaks.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Assessment {
+    /// The objective it is judged by.
+    pub objective: Objective,
+    /// The objective's score (smaller is better; infinite when the tour cannot be evaluated).
+    pub score: f64,
+    /// Every broken limit (and every reason the tour cannot be evaluated), in the evaluation's
+    /// order.
+    pub breaches: Vec<Warning>,
+}
+
+impl Assessment {
+    /// Judge an evaluation by `objective` and the limits of `limits`.
+    pub fn of(objective: Objective, e: &Evaluation, limits: LimitSet) -> Assessment {
+        let mut breaches: Vec<Warning> = e
+            .warnings
+            .iter()
+            .filter(|w| limits.counts(w))
+            .cloned()
+            .collect();
+        if !e.complete && breaches.is_empty() {
+            breaches.push(Warning::NotFinite {
+                what: "the tour (it is incomplete)",
+            });
         }
+        Assessment {
+            objective,
+            score: objective.value(e),
+            breaches,
+        }
+    }
+
+    /// True when the design meets every limit and has a value.
+    pub fn feasible(&self) -> bool {
+        self.breaches.is_empty() && self.score.is_finite()
+    }
+
+    /// The objective as a designer reads it (delivered mass positive).
+    pub fn display_value(&self) -> f64 {
+        self.objective.display_value(self.score)
+    }
+
+    /// "launch v∞ + spacecraft Δv 7.8852 km/s".
+    pub fn value_text(&self) -> String {
+        format!(
+            "{} {}",
+            self.objective.label(),
+            self.objective.text(self.score)
+        )
+    }
+
+    /// "meets every limit" or "breaks 2 limits".
+    pub fn limits_text(&self) -> String {
+        match self.breaches.len() {
+            0 => "meets every limit".into(),
+            1 => "breaks 1 limit".into(),
+            n => format!("breaks {n} limits"),
+        }
+    }
+
+    /// Each broken limit in words, with by how much.
+    pub fn breach_lines(&self) -> Vec<String> {
+        self.breaches.iter().map(breach_text).collect()
+    }
+
+    /// True when `self` is a better design than `other`: one that meets every limit beats one
+    /// that does not; between two that do (or two that do not), the smaller score wins (for two
+    /// that do not, the smaller penalised score: see [`Assessment::closeness`]).
+    pub fn better_than(&self, other: &Assessment) -> bool {
+        match (self.feasible(), other.feasible()) {
+            (true, false) => true,
+            (false, true) => false,
+            (true, true) => self.score < other.score,
+            (false, false) => self.closeness() < other.closeness(),
+        }
+    }
+
+    /// How far from meeting its limits a design is, for ranking designs that all break some:
+    /// the number of broken limits first (a failure to evaluate counts as many), then the score.
+    pub fn closeness(&self) -> (usize, f64) {
+        let failures = self.breaches.iter().filter(|w| w.is_failure()).count();
+        let n = self.breaches.len() + 1000 * failures;
+        (
+            n,
+            if self.score.is_finite() {
+                self.score
+            } else {
+                f64::MAX
+            },
+        )
+    }
+}
+
+/// One broken limit in words: the warning and, where it has a measure, by how much.
+pub fn breach_text(w: &Warning) -> String {
+    match w.excess() {
+        Some((x, unit)) => {
+            let p = if x.abs() >= 100.0 {
+                0
+            } else if x.abs() >= 1.0 {
+                2
+            } else {
+                4
+            };
+            format!("{w} (by {x:.p$} {unit})")
+        }
+        None => w.to_string(),
     }
 }

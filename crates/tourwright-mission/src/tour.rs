@@ -18,7 +18,7 @@ use crate::design::{
     ArrivalGoal, Dsm, DsmTime, EphemerisChoice, LaunchLimits, LaunchVehicle, MissionDesign,
     Spacecraft, SwingbyMode,
 };
-use crate::files::Invalid;
+use crate::invalid::Invalid;
 
 /// The role of a stop in the tour.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
@@ -310,6 +310,8 @@ pub struct PreparedTour {
     pub model: EphemerisModel,
     /// The heliocentric gravitational parameter of the model, km³/s².
     pub mu_sun: f64,
+    /// The design's limit on the total time of flight, days.
+    pub max_total_tof_days: Option<f64>,
 }
 
 impl PreparedTour {
@@ -392,6 +394,7 @@ impl PreparedTour {
             ephemeris_name: catalog.model().name(),
             model: catalog.model().clone(),
             mu_sun: catalog.model().mu_sun(),
+            max_total_tof_days: d.search.max_total_tof_days,
         })
     }
 
@@ -434,6 +437,7 @@ impl PreparedTour {
             ephemeris_name: model.name(),
             model: model.clone(),
             mu_sun: model.mu_sun(),
+            max_total_tof_days: None,
         }
     }
 

@@ -6,8 +6,8 @@ use rayon::prelude::*;
 
 use tourwright_astro::time::Tdb;
 pub use tourwright_astro::transfer::{Hohmann, hohmann};
-use tourwright_mission::design::Stop;
-use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate};
+use tourwright_mission::design::{LaunchLimits, Stop};
+use tourwright_mission::evaluate::{EvalOptions, Evaluation, Warning, evaluate};
 use tourwright_mission::{MissionDesign, Objective, PreparedTour};
 
 use crate::job::Progress;
@@ -71,6 +71,9 @@ pub struct DirectComparison {
     pub measure: Objective,
     /// Lambert arcs evaluated.
     pub evaluations: u64,
+    /// The design's launch limits (C3, declination band) the direct transfer breaks: empty
+    /// unless no direct transfer in the launch period meets them.
+    pub launch_breaches: Vec<Warning>,
 }
 
 impl DirectComparison {
@@ -117,6 +120,22 @@ impl DirectComparison {
         };
         format!("The tour {time} and {gain} than the best direct transfer.")
     }
+
+    /// When no direct transfer in the launch period meets the design's launch limits, a
+    /// sentence that says so and names what the one shown breaks.
+    pub fn limits_note(&self) -> Option<String> {
+        (!self.launch_breaches.is_empty()).then(|| {
+            format!(
+                "No direct transfer in the launch period meets the design's launch limits; the \
+                 best one breaks: {}.",
+                self.launch_breaches
+                    .iter()
+                    .map(tourwright_mission::score::breach_text)
+                    .collect::<Vec<_>>()
+                    .join("; ")
+            )
+        })
+    }
 }
 
 fn mass_text(kg: f64) -> String {
@@ -127,13 +146,24 @@ fn mass_text(kg: f64) -> String {
     }
 }
 
-/// The score of a direct arc: the objective plus a steep price for breaking the design's C3 limit.
-fn penalised(measure: Objective, e: &Evaluation, max_c3: Option<f64>) -> f64 {
-    let s = measure.value(e);
-    match max_c3 {
-        Some(m) if e.launch.c3 > m => s + 1e3 + (e.launch.c3 - m),
-        _ => s,
+/// The score of a direct arc: the objective plus a steep price for breaking the design's launch
+/// limits (C3, declination band), so that any arc within them ranks ahead of every arc outside.
+fn penalised(measure: Objective, e: &Evaluation, launch: &LaunchLimits) -> f64 {
+    let mut s = measure.value(e);
+    if let Some(m) = launch.max_c3_km2_s2 {
+        if e.launch.c3 > m {
+            s += 1e3 + (e.launch.c3 - m);
+        }
     }
+    let (lo, hi) = (
+        launch.min_dla_deg.unwrap_or(-90.0),
+        launch.max_dla_deg.unwrap_or(90.0),
+    );
+    let out = (lo - e.launch.dla_deg).max(e.launch.dla_deg - hi);
+    if out > 0.0 {
+        s += 1e3 + out;
+    }
+    s
 }
 
 /// Find the best direct transfer for a design and compare. The grid runs on all cores; cancelling
@@ -168,14 +198,14 @@ pub fn compare(
     template.spacecraft = tour.spacecraft.clone();
     template.vehicle = tour.vehicle.clone();
     template.launch = tour.launch;
-    let max_c3 = tour.launch.max_c3_km2_s2;
+    let limits = tour.launch;
     let measure = opts.measure;
     let score_at = |work: &mut (PreparedTour, Evaluation), dt0: f64, tof: f64| -> f64 {
         let t0 = t_launch.plus_days(dt0);
         work.0.stops[0].t = t0;
         work.0.stops[1].t = t0.plus_days(tof);
         evaluate(&work.0, &EvalOptions::SEARCH, &mut work.1);
-        penalised(measure, &work.1, max_c3)
+        penalised(measure, &work.1, &limits)
     };
     progress.set_total(g as u64);
     let at = |i: usize, j: usize| {
@@ -270,6 +300,17 @@ pub fn compare(
     let direct_tour = PreparedTour::prepare(&direct).ok()?;
     let mut direct_eval = Evaluation::default();
     evaluate(&direct_tour, &EvalOptions::default(), &mut direct_eval);
+    let launch_breaches = direct_eval
+        .warnings
+        .iter()
+        .filter(|w| {
+            matches!(
+                w,
+                Warning::C3OverLimit { .. } | Warning::DlaOutOfRange { .. }
+            )
+        })
+        .cloned()
+        .collect();
     let hohmann = hohmann(
         tour.stops[0].body.mean_distance_km(),
         tour.stops[n - 1].body.mean_distance_km(),
@@ -283,6 +324,7 @@ pub fn compare(
         hohmann,
         measure,
         evaluations: progress.evaluations(),
+        launch_breaches,
     })
 }
 

@@ -18,14 +18,17 @@ use tourwright_astro::bodies::Planet;
 use tourwright_astro::ephemeris::MeanElements;
 use tourwright_astro::time::Epoch;
 use tourwright_astro::transfer::hohmann;
-use tourwright_mission::Objective;
 use tourwright_mission::design::{
     Dsm, LaunchVinf, LegOptions, MissionDesign, SearchBounds, Stop, SwingbyMode, TofBounds,
 };
 use tourwright_mission::evaluate::evaluate_design;
+use tourwright_mission::{LimitSet, Objective};
 
 use crate::job::Progress;
-use crate::optimize::{OptimizeOptions, Problem, optimize};
+use crate::optimize::{OptimizeOptions, search_design};
+
+/// Default optimiser evaluations per explored sequence (CLI and workbench).
+pub const DEFAULT_EVALS_PER_SEQUENCE: u64 = 60_000;
 
 /// What to explore.
 #[derive(Clone, Debug, PartialEq)]
@@ -53,6 +56,9 @@ pub struct ExploreSpec {
     pub shard: Option<(usize, usize)>,
     /// Which legs get a deep-space manoeuvre.
     pub dsm: DsmPolicy,
+    /// Which limits a tour must meet to rank as feasible (the spacecraft's masses only when
+    /// the template's spacecraft is the designer's).
+    pub limits: LimitSet,
 }
 
 /// Which legs of an explored sequence carry a deep-space manoeuvre (MGA-1DSM legs: the swing-by
@@ -93,8 +99,11 @@ pub struct Candidate {
     pub label: String,
     /// The optimised design.
     pub design: MissionDesign,
-    /// Penalised objective value.
+    /// The objective exactly as `eval` computes it (smaller is better; delivered mass negated).
     pub value: f64,
+    /// The objective the value measures.
+    #[serde(default)]
+    pub objective: Objective,
     /// Launch epoch.
     pub launch: Epoch,
     /// Total TOF, days.
@@ -107,6 +116,9 @@ pub struct Candidate {
     pub delivered_kg: Option<f64>,
     /// True when the design breaks no limit.
     pub feasible: bool,
+    /// Each broken limit in words, with by how much (empty when feasible).
+    #[serde(default)]
+    pub breaches: Vec<String>,
 }
 
 /// Result of an exploration.
@@ -301,49 +313,45 @@ pub fn explore(
             i + 1,
             survivors.len()
         ));
-        let mut d = design_for(s, spec, template);
-        let Ok(p) = Problem::from_design(&d) else {
-            ex.pruned
-                .push((label(s), "the sequence cannot be prepared".to_string()));
-            continue;
-        };
+        let d = design_for(s, spec, template);
         let inner = progress.child();
-        let r = optimize(
-            &p,
+        let outcome = search_design(
+            &d,
             &OptimizeOptions {
                 seed: spec.seed,
                 max_evals: spec.evals_per_sequence,
                 islands: 2,
                 ..Default::default()
             },
+            spec.limits,
             &inner,
             false,
         );
         if inner.is_cancelled() {
             break;
         }
-        if tourwright_mission::Edit::ApplySchedule(r.schedule.clone())
-            .apply(&mut d)
-            .is_err()
-        {
-            ex.pruned.push((
-                label(s),
-                "the optimum could not be written back".to_string(),
-            ));
-            continue;
-        }
-        let (_, e) = evaluate_design(&d);
-        progress.offer_best(r.value);
+        let o = match outcome {
+            Ok(o) => o,
+            Err(e) => {
+                ex.pruned
+                    .push((label(s), format!("the sequence cannot be searched: {e}")));
+                continue;
+            }
+        };
+        let (_, e) = evaluate_design(&o.design);
+        progress.offer_best(o.result.score);
         ex.ranked.push(Candidate {
             label: label(s),
-            launch: d.stops[0].epoch,
+            launch: o.design.stops[0].epoch,
             tof_days: e.total_tof_days(),
             c3: e.launch.c3,
             dv_km_s: e.ledger.total_dv_km_s,
             delivered_kg: e.ledger.delivered_mass_kg,
-            feasible: e.complete && !e.violates_limits() && spec_tof_ok(&e, max_tof),
-            value: r.value,
-            design: d,
+            feasible: o.result.feasible(),
+            breaches: o.result.breach_lines(),
+            value: o.result.score,
+            objective: o.result.objective,
+            design: o.design,
         });
         progress.add(1);
     }
@@ -409,8 +417,4 @@ impl Exploration {
         ex.rank();
         Ok(ex)
     }
-}
-
-fn spec_tof_ok(e: &tourwright_mission::Evaluation, max_tof: f64) -> bool {
-    e.total_tof_days() <= max_tof + 1e-6
 }

@@ -24,15 +24,36 @@ pub fn launch(tour: &PreparedTour, out: &mut Evaluation) {
     let lo = tour.launch.min_dla_deg.unwrap_or(-90.0);
     let hi = tour.launch.max_dla_deg.unwrap_or(90.0);
     if dla < lo || dla > hi {
-        out.warnings.push(Warning::DlaOutOfRange { dla });
+        out.warnings.push(Warning::DlaOutOfRange {
+            dla,
+            min: lo,
+            max: hi,
+        });
     }
     if let Some(lv) = &tour.vehicle {
         if let Some((m, inside)) = launch::injected_mass(lv, out.launch.c3) {
             out.launch.injected_mass_kg = Some(m);
             if !inside {
-                out.warnings
-                    .push(Warning::OutsideLvTable { c3: out.launch.c3 });
+                let p = &lv.performance;
+                out.warnings.push(Warning::OutsideLvTable {
+                    c3: out.launch.c3,
+                    min: p.first().map_or(0.0, |x| x.c3_km2_s2),
+                    max: p.last().map_or(0.0, |x| x.c3_km2_s2),
+                });
             }
+        }
+    }
+}
+
+/// The total time of flight against the design's limit.
+pub fn tof_limit(tour: &PreparedTour, out: &mut Evaluation) {
+    if let Some(max) = tour.max_total_tof_days {
+        let tof = out.total_tof_days();
+        if tof > max + crate::rules::TOF_TOLERANCE_DAYS {
+            out.warnings.push(Warning::TofOverLimit {
+                tof_days: tof,
+                max_days: max,
+            });
         }
     }
 }

@@ -150,7 +150,11 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
     out.legs.push(leg);
     if shaped.is_some() {
         let miss = (arrive.r - to.r).norm();
-        let closest = closest_approach(&depart, a.t, tof, &b.body, tour.mu_sun);
+        let closest = if opts.closest_approach {
+            closest_approach(&depart, a.t, tof, &b.body, tour.mu_sun)
+        } else {
+            None
+        };
         if let Some(sw) = out.stops[k].swingby.as_mut() {
             sw.miss_km = rules::shown(miss);
             sw.closest_approach = closest;
@@ -159,6 +163,7 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
             out.warnings.push(Warning::MissesNextBody {
                 stop: k,
                 miss_km: miss,
+                tolerance_km: rules::arrival_sphere_km(&b.body.data),
             });
         }
     }

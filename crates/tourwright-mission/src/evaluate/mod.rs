@@ -292,11 +292,26 @@ pub enum Warning {
     DlaOutOfRange {
         /// DLA, degrees.
         dla: f64,
+        /// Smallest acceptable DLA, degrees.
+        min: f64,
+        /// Largest acceptable DLA, degrees.
+        max: f64,
     },
     /// C3 outside the launch-vehicle table (value extrapolated).
     OutsideLvTable {
         /// C3, km²/s².
         c3: f64,
+        /// The table's smallest C3, km²/s².
+        min: f64,
+        /// The table's largest C3, km²/s².
+        max: f64,
+    },
+    /// The total time of flight is over the design's limit.
+    TofOverLimit {
+        /// Total time of flight, days.
+        tof_days: f64,
+        /// Limit, days.
+        max_days: f64,
     },
     /// Not enough propellant.
     PropellantShort {
@@ -318,6 +333,8 @@ pub enum Warning {
         stop: usize,
         /// Miss distance at the next epoch, km.
         miss_km: f64,
+        /// The largest miss that still counts as meeting the body, km.
+        tolerance_km: f64,
     },
     /// A manoeuvre's date lies outside its leg (evaluated at the nearer end).
     DsmOutsideLeg {
@@ -373,13 +390,17 @@ impl fmt::Display for Warning {
                 f,
                 "launch C3 {c3:.2} km²/s² is over the limit {max:.2} km²/s²"
             ),
-            Warning::DlaOutOfRange { dla } => write!(
+            Warning::DlaOutOfRange { dla, min, max } => write!(
                 f,
-                "launch declination {dla:.1}° is outside the accepted band"
+                "launch declination {dla:.1}° is outside the accepted band {min:.1}° .. {max:.1}°"
             ),
-            Warning::OutsideLvTable { c3 } => write!(
+            Warning::OutsideLvTable { c3, min, max } => write!(
                 f,
-                "C3 {c3:.2} km²/s² is outside the launch-vehicle table; mass is extrapolated"
+                "C3 {c3:.2} km²/s² is outside the launch-vehicle table ({min:.1} .. {max:.1} km²/s²); mass is extrapolated"
+            ),
+            Warning::TofOverLimit { tof_days, max_days } => write!(
+                f,
+                "total time of flight {tof_days:.1} days is over the limit {max_days:.1} days"
             ),
             Warning::PropellantShort {
                 needed_kg,
@@ -395,11 +416,16 @@ impl fmt::Display for Warning {
                 f,
                 "launch vehicle injects {capacity_kg:.0} kg at this C3, spacecraft is {wet_kg:.0} kg"
             ),
-            Warning::MissesNextBody { stop, miss_km } => write!(
+            Warning::MissesNextBody {
+                stop,
+                miss_km,
+                tolerance_km,
+            } => write!(
                 f,
-                "stop {}: the shaped swing-by misses the next body by {:.0} km",
+                "stop {}: the shaped swing-by misses the next body by {:.0} km (at most {:.0} km counts as meeting it)",
                 stop + 1,
-                miss_km
+                miss_km,
+                tolerance_km
             ),
             Warning::DsmOutsideLeg { leg, fraction } => write!(
                 f,
@@ -415,8 +441,10 @@ impl fmt::Display for Warning {
 }
 
 impl Warning {
-    /// True for a broken hard limit (altitude, turn, C3, declination): a search treats these as
-    /// constraints and the explorer marks such tours as not feasible.
+    /// True for a broken limit of the design: swing-by altitude, v∞, powered Δv and turn, a
+    /// shaped swing-by that misses its next body, launch C3 and declination, the total time of
+    /// flight, a manoeuvre off its leg, and the mass limits ([`Warning::is_mass_limit`]). Every
+    /// search keeps these as constraints; a result that breaks one says so.
     pub fn is_limit(&self) -> bool {
         matches!(
             self,
@@ -427,7 +455,70 @@ impl Warning {
                 | Warning::TurnImpossible { .. }
                 | Warning::DlaOutOfRange { .. }
                 | Warning::DsmOutsideLeg { .. }
+                | Warning::MissesNextBody { .. }
+                | Warning::TofOverLimit { .. }
+        ) || self.is_mass_limit()
+    }
+
+    /// True for a limit of the spacecraft's masses: propellant, the launch vehicle's capacity,
+    /// and a C3 outside the vehicle's table (its mass would be extrapolated).
+    pub fn is_mass_limit(&self) -> bool {
+        matches!(
+            self,
+            Warning::PropellantShort { .. }
+                | Warning::LvCapacityShort { .. }
+                | Warning::OutsideLvTable { .. }
         )
+    }
+
+    /// True when the warning means the tour could not be evaluated at all (no arc, no state, a
+    /// stop out of order, an unusable field, a figure that is not a number).
+    pub fn is_failure(&self) -> bool {
+        matches!(
+            self,
+            Warning::Design { .. }
+                | Warning::NoArc { .. }
+                | Warning::NoBallisticArc { .. }
+                | Warning::Ephemeris { .. }
+                | Warning::OutOfOrder { .. }
+                | Warning::NotFinite { .. }
+        )
+    }
+
+    /// By how much a broken limit is broken, with its unit (`None` when there is no measure, as
+    /// for a turn no swing-by can make).
+    pub fn excess(&self) -> Option<(f64, &'static str)> {
+        let v = match *self {
+            Warning::AltitudeBelowMinimum {
+                altitude_km,
+                min_km,
+                ..
+            } => (min_km - altitude_km, "km"),
+            Warning::VinfBelowMinimum { vinf, min, .. } => (min - vinf, "km/s"),
+            Warning::PoweredDvOverLimit { dv, max, .. } => (dv - max, "km/s"),
+            Warning::C3OverLimit { c3, max } => (c3 - max, "km²/s²"),
+            Warning::DlaOutOfRange { dla, min, max } => ((min - dla).max(dla - max), "°"),
+            Warning::OutsideLvTable { c3, min, max } => ((min - c3).max(c3 - max), "km²/s²"),
+            Warning::TofOverLimit { tof_days, max_days } => (tof_days - max_days, "days"),
+            Warning::MissesNextBody {
+                miss_km,
+                tolerance_km,
+                ..
+            } => (miss_km - tolerance_km, "km"),
+            Warning::PropellantShort {
+                needed_kg,
+                loaded_kg,
+            } => (needed_kg - loaded_kg, "kg"),
+            Warning::LvCapacityShort {
+                capacity_kg,
+                wet_kg,
+            } => (wet_kg - capacity_kg, "kg"),
+            Warning::DsmOutsideLeg { fraction, .. } => {
+                (100.0 * (-fraction).max(fraction - 1.0), "% of the leg")
+            }
+            _ => return None,
+        };
+        (v.0.is_finite()).then_some(v)
     }
 }
 
@@ -436,19 +527,26 @@ impl Warning {
 pub struct EvalOptions {
     /// Trajectory points per leg for drawing and export (0 for none, as in search).
     pub samples_per_leg: usize,
+    /// Find each ballistic leg's closest approach to its next body (a figure for the views; a
+    /// hundred propagations per leg, so search leaves it out).
+    pub closest_approach: bool,
 }
 
 impl Default for EvalOptions {
     fn default() -> Self {
         EvalOptions {
             samples_per_leg: 240,
+            closest_approach: true,
         }
     }
 }
 
 impl EvalOptions {
     /// No drawing samples (search).
-    pub const SEARCH: EvalOptions = EvalOptions { samples_per_leg: 0 };
+    pub const SEARCH: EvalOptions = EvalOptions {
+        samples_per_leg: 0,
+        closest_approach: false,
+    };
 }
 
 /// Everything a tour implies.
@@ -547,6 +645,7 @@ pub fn evaluate(tour: &PreparedTour, opts: &EvalOptions, out: &mut Evaluation) {
         swingby::finish(tour, k, out);
     }
     budget::launch(tour, out);
+    budget::tof_limit(tour, out);
     budget::arrival(tour, out);
     budget::energies(tour.mu_sun, out);
     budget::ledger(tour, out);

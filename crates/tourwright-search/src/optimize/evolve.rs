@@ -1,0 +1,898 @@
+//! The search itself: self-adaptive differential evolution (jDE: Brest et al., IEEE TEC 10(6),
+//! 2006) on islands with ring migration, then monotonic basin hopping (Wales & Doye 1997; Leary
+//! 2000) with a local descent on several chains.
+//!
+//! Three promises, kept by construction:
+//! - **Deterministic per seed and budget**: the islands' and chains' counts are fixed, they advance
+//!   in lock-step blocks and rounds, and each gets its share of the budget before a block starts,
+//!   so the answer does not depend on the number of cores.
+//! - **A budget is a hard cap, and more budget never gives a worse answer**: the run's course does
+//!   not depend on its budget (the evolutionary phase has a fixed length; every block and round
+//!   is the same in a longer run), a block or round that would overrun is cut short and ends the
+//!   run. So a run with budget N evaluates a subset of the points a run with budget 2N evaluates,
+//!   and the answer is the best point ever evaluated (below).
+//! - **The answer is the best point evaluated**: every evaluation goes through a [`Worker`] that
+//!   remembers the best point meeting every limit and the best penalised point; the result is
+//!   the former when any point met every limit. The start, when given, is the first point
+//!   evaluated, so a start that meets every limit is never beaten by a worse answer.
+
+use rayon::prelude::*;
+
+use super::problem::{Problem, Workspace};
+use super::rng::Rng;
+use crate::job::Progress;
+use crate::polish::{LocalOptions, auglag_box, clamp_safe, lm_sum_of_norms};
+use tourwright_mission::Schedule;
+
+/// Optimiser settings.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct OptimizeOptions {
+    /// Seed of every random choice.
+    pub seed: u64,
+    /// Most objective evaluations (all islands and chains together): a hard cap.
+    pub max_evals: u64,
+    /// Optional wall-clock limit, seconds (results then depend on machine speed).
+    pub time_limit_s: Option<f64>,
+    /// Islands (fixed, so that results do not depend on the number of cores).
+    pub islands: usize,
+    /// Individuals per island (0: 15 × dimension, between 30 and 120).
+    pub population: usize,
+    /// Basin-hopping settings.
+    pub hop: HopSettings,
+}
+
+/// The default evaluation budget of an optimiser run (CLI and workbench alike): ours, measured on
+/// the samples (DEVELOPERS.md): about 2-6 s on two cores.
+pub const DEFAULT_EVALS: u64 = 1_000_000;
+
+impl Default for OptimizeOptions {
+    fn default() -> Self {
+        OptimizeOptions {
+            seed: 1,
+            max_evals: DEFAULT_EVALS,
+            time_limit_s: None,
+            islands: 4,
+            population: 0,
+            hop: HopSettings::default(),
+        }
+    }
+}
+
+/// Basin-hopping settings (ours; tuned on the Cassini benchmarks, see DEVELOPERS.md).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct HopSettings {
+    /// Perturbation of each variable, as a fraction of its range.
+    pub radius: f64,
+    /// Failed hops before a chain restarts from a fresh point.
+    pub fails_before_restart: usize,
+    /// Evaluations allowed to one local descent (augmented Lagrangian with quasi-Newton solves).
+    pub local_evals: usize,
+    /// Evaluations allowed to one Gauss-Newton descent of a sum of norms (tours with
+    /// manoeuvres; it converges in fewer evaluations).
+    pub local_evals_norms: usize,
+    /// Generations of differential evolution before basin hopping (a fixed count, so that the
+    /// course of a run does not depend on its budget).
+    pub de_generations: usize,
+    /// With a time limit, the share of the time given to differential evolution at most.
+    pub de_time_share: f64,
+    /// Basin-hopping chains.
+    pub chains: usize,
+}
+
+impl Default for HopSettings {
+    fn default() -> Self {
+        HopSettings {
+            radius: 0.02,
+            fails_before_restart: 20,
+            local_evals: 2000,
+            local_evals_norms: 1500,
+            de_generations: 100,
+            de_time_share: 0.1,
+            chains: 4,
+        }
+    }
+}
+
+/// What the optimiser found.
+#[derive(Clone, Debug)]
+pub struct OptimizeResult {
+    /// Best decision vector.
+    pub x: Vec<f64>,
+    /// Its score: the objective when it meets every limit, else the penalised score.
+    pub value: f64,
+    /// The objective at `x` (without penalties).
+    pub objective: f64,
+    /// True when `x` meets every limit of the problem.
+    pub feasible: bool,
+    /// What the design takes from the optimum: epochs (each in its design's time scale), leg
+    /// options (revolution choices, manoeuvres) and the shaped swing-bys' altitude and aim.
+    pub schedule: Schedule,
+    /// Objective evaluations used (at most the budget).
+    pub evaluations: u64,
+    /// Trade-off front of points that meet every limit: (total TOF days, objective) pairs, none
+    /// dominated, sorted by TOF.
+    pub front: Vec<(f64, f64)>,
+    /// True when stopped by cancellation.
+    pub cancelled: bool,
+}
+
+fn add_front(front: &mut Vec<(f64, f64)>, p: (f64, f64)) {
+    if front.iter().any(|q| q.0 <= p.0 && q.1 <= p.1) {
+        return;
+    }
+    front.retain(|q| !(p.0 <= q.0 && p.1 <= q.1));
+    front.push(p);
+    if front.len() > 400 {
+        front.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let keep: Vec<_> = front.iter().step_by(2).copied().collect();
+        *front = keep;
+    }
+}
+
+/// One worker's evaluations: scratch space, the evaluations it may still spend in the current
+/// block or round, and the best points it has seen.
+struct Worker {
+    work: Workspace,
+    g: Vec<f64>,
+    evals: u64,
+    allowance: u64,
+    /// Best point meeting every limit, with its objective.
+    feasible: Option<(Vec<f64>, f64)>,
+    /// Best point by penalised score, with that score and its objective.
+    any: Option<(Vec<f64>, f64)>,
+    /// The objective of `any`.
+    any_objective: f64,
+    /// Whether the last evaluation met every limit, and its objective.
+    last: (bool, f64),
+    front: Vec<(f64, f64)>,
+}
+
+impl Worker {
+    fn new(p: &Problem) -> Self {
+        Worker {
+            work: Workspace::new(p),
+            g: vec![0.0; p.constraints.len()],
+            evals: 0,
+            allowance: 0,
+            feasible: None,
+            any: None,
+            any_objective: f64::INFINITY,
+            last: (false, f64::INFINITY),
+            front: Vec::new(),
+        }
+    }
+
+    fn can(&self, progress: &Progress) -> bool {
+        self.allowance > 0 && !progress.is_cancelled()
+    }
+
+    /// Objective at `x` with the constraints in `g`; `None` when the allowance is spent or the
+    /// run is cancelled (nothing is evaluated or counted then).
+    fn parts(&mut self, p: &Problem, x: &[f64], g: &mut [f64], progress: &Progress) -> Option<f64> {
+        if !self.can(progress) {
+            return None;
+        }
+        self.allowance -= 1;
+        self.evals += 1;
+        progress.count_evals(1);
+        let base = p.evaluate_parts(x, &mut self.work, g);
+        let pen = p.penalised(base, g);
+        self.record(x, base, pen);
+        Some(base)
+    }
+
+    fn record(&mut self, _x: &[f64], base: f64, pen: f64) {
+        // The point scored (ballistic returns solved), not the vector asked for.
+        let x = &self.work.point[..];
+        let feasible = self.work.feasible;
+        self.last = (feasible, base);
+        if feasible && self.feasible.as_ref().is_none_or(|b| base < b.1) {
+            keep(&mut self.feasible, x, base);
+        }
+        if pen < 1e9 && self.any.as_ref().is_none_or(|b| pen < b.1) {
+            keep(&mut self.any, x, pen);
+            self.any_objective = base;
+        }
+    }
+
+    /// Penalised score at `x` (`None` as for [`Worker::parts`]).
+    fn score(&mut self, p: &Problem, x: &[f64], progress: &Progress) -> Option<f64> {
+        let mut g = std::mem::take(&mut self.g);
+        let v = self
+            .parts(p, x, &mut g, progress)
+            .map(|base| p.penalised(base, &g));
+        self.g = g;
+        v
+    }
+
+    /// Residuals of the sum-of-norms objective at `x`; false when not evaluated or not
+    /// evaluable.
+    fn residuals(&mut self, p: &Problem, x: &[f64], r: &mut [f64], progress: &Progress) -> bool {
+        let mut g = std::mem::take(&mut self.g);
+        let ok = match self.parts(p, x, &mut g, progress) {
+            Some(base) if base < 1e9 => {
+                p.fill_residuals(&self.work.eval, &g, r);
+                true
+            }
+            _ => false,
+        };
+        self.g = g;
+        ok
+    }
+
+    fn offer_front(&mut self, tof: f64) {
+        if self.last.0 && self.last.1.is_finite() {
+            add_front(&mut self.front, (tof, self.last.1));
+        }
+    }
+}
+
+/// Half-width of the region around the start the first island is seeded in, as a fraction of
+/// each variable's range (ours).
+const START_RADIUS: f64 = 0.05;
+
+fn keep(slot: &mut Option<(Vec<f64>, f64)>, x: &[f64], v: f64) {
+    match slot {
+        Some((bx, bv)) => {
+            bx.clear();
+            bx.extend_from_slice(x);
+            *bv = v;
+        }
+        None => *slot = Some((x.to_vec(), v)),
+    }
+}
+
+struct Island {
+    rng: Rng,
+    pop: Vec<Vec<f64>>,
+    fit: Vec<f64>,
+    f: Vec<f64>,
+    cr: Vec<f64>,
+    trial: Vec<f64>,
+    stall: usize,
+    best: f64,
+    /// Members still to be evaluated for the first time (the first block evaluates them).
+    unscored: usize,
+    worker: Worker,
+}
+
+impl Island {
+    fn new(p: &Problem, np: usize, seed: u64) -> Self {
+        let mut rng = Rng::new(seed);
+        let d = p.dim();
+        let pop: Vec<Vec<f64>> = (0..np)
+            .map(|_| {
+                (0..d)
+                    .map(|i| p.lo[i] + rng.uniform() * (p.hi[i] - p.lo[i]))
+                    .collect()
+            })
+            .collect();
+        Island {
+            rng,
+            pop,
+            fit: vec![f64::INFINITY; np],
+            f: vec![0.5; np],
+            cr: vec![0.9; np],
+            trial: vec![0.0; d],
+            stall: 0,
+            best: f64::INFINITY,
+            unscored: np,
+            worker: Worker::new(p),
+        }
+    }
+
+    fn best_index(&self) -> usize {
+        (0..self.fit.len())
+            .min_by(|&a, &b| self.fit[a].total_cmp(&self.fit[b]))
+            .unwrap_or(0)
+    }
+
+    /// Score the members not yet scored. False when the allowance ran out first.
+    fn score_members(&mut self, p: &Problem, progress: &Progress) -> bool {
+        let np = self.pop.len();
+        while self.unscored > 0 {
+            let i = np - self.unscored;
+            match self.worker.score(p, &self.pop[i], progress) {
+                Some(v) => {
+                    self.fit[i] = v;
+                    self.pop[i].copy_from_slice(&self.worker.work.point);
+                }
+                None => return false,
+            }
+            self.unscored -= 1;
+        }
+        self.best = self.fit.iter().copied().fold(f64::INFINITY, f64::min);
+        true
+    }
+
+    /// One generation of jDE rand/1/bin. False when the allowance ran out.
+    fn generation(&mut self, p: &Problem, want_front: bool, progress: &Progress) -> bool {
+        let np = self.pop.len();
+        let d = p.dim();
+        for i in 0..np {
+            let fi = if self.rng.uniform() < 0.1 {
+                0.1 + 0.9 * self.rng.uniform()
+            } else {
+                self.f[i]
+            };
+            let ci = if self.rng.uniform() < 0.1 {
+                self.rng.uniform()
+            } else {
+                self.cr[i]
+            };
+            let (mut a, mut b, mut c) = (i, i, i);
+            while a == i {
+                a = self.rng.below(np);
+            }
+            while b == i || b == a {
+                b = self.rng.below(np);
+            }
+            while c == i || c == a || c == b {
+                c = self.rng.below(np);
+            }
+            let jr = self.rng.below(d);
+            for j in 0..d {
+                let v = if j == jr || self.rng.uniform() < ci {
+                    self.pop[a][j] + fi * (self.pop[b][j] - self.pop[c][j])
+                } else {
+                    self.pop[i][j]
+                };
+                // Out of bounds: a random point between the parent and the bound.
+                self.trial[j] = if v < p.lo[j] {
+                    p.lo[j] + self.rng.uniform() * (self.pop[i][j] - p.lo[j])
+                } else if v > p.hi[j] {
+                    p.hi[j] - self.rng.uniform() * (p.hi[j] - self.pop[i][j])
+                } else {
+                    v
+                };
+            }
+            let Some(ft) = self.worker.score(p, &self.trial, progress) else {
+                return false;
+            };
+            if want_front {
+                self.worker.offer_front(p.total_tof(&self.trial));
+            }
+            if ft <= self.fit[i] {
+                // The point scored (ballistic returns solved): the next trials start from it.
+                self.pop[i].copy_from_slice(&self.worker.work.point);
+                self.fit[i] = ft;
+                self.f[i] = fi;
+                self.cr[i] = ci;
+            }
+        }
+        let b = self.fit[self.best_index()];
+        if b < self.best - 1e-9 * self.best.abs().max(1.0) {
+            self.best = b;
+            self.stall = 0;
+        } else {
+            self.stall += 1;
+        }
+        true
+    }
+
+    /// Restart after a long stall: keep the best, scatter the rest. False when the allowance ran
+    /// out.
+    fn restart(&mut self, p: &Problem, progress: &Progress) -> bool {
+        let keep = self.best_index();
+        let d = p.dim();
+        for i in 0..self.pop.len() {
+            if i == keep {
+                continue;
+            }
+            for j in 0..d {
+                self.pop[i][j] = p.lo[j] + self.rng.uniform() * (p.hi[j] - p.lo[j]);
+            }
+            let Some(v) = self.worker.score(p, &self.pop[i], progress) else {
+                return false;
+            };
+            self.pop[i].copy_from_slice(&self.worker.work.point);
+            self.fit[i] = v;
+            self.f[i] = 0.5;
+            self.cr[i] = 0.9;
+        }
+        self.stall = 0;
+        true
+    }
+}
+
+/// One monotonic basin-hopping chain: its best point, its own random stream and its worker.
+struct Chain {
+    rng: Rng,
+    x: Vec<f64>,
+    fx: f64,
+    /// The best point this chain ever held (a restart forgets `x`, not this).
+    best: (Vec<f64>, f64),
+    fails: usize,
+    trial: Vec<f64>,
+    worker: Worker,
+    /// A point to descend from before any hop (the start, for the first chain).
+    first: Option<Vec<f64>>,
+}
+
+impl Chain {
+    /// Local descent from `x0` (augmented Lagrangian over the problem's constraints with
+    /// quasi-Newton inner solves; Gauss-Newton on the sum of norms for tours with manoeuvres):
+    /// the point and its penalised score.
+    fn descend(
+        &mut self,
+        p: &Problem,
+        x0: &[f64],
+        hs: &HopSettings,
+        progress: &Progress,
+    ) -> (Vec<f64>, f64) {
+        let worker = &mut self.worker;
+        // Start from the point as scored (ballistic returns solved), so that every nearby
+        // evaluation solves its returns from close by.
+        let solved;
+        let x0 = if p.returns.is_empty() {
+            x0
+        } else {
+            if worker.score(p, x0, progress).is_none() {
+                return (x0.to_vec(), 1e9);
+            }
+            solved = worker.work.point.clone();
+            &solved[..]
+        };
+        if let Some(shape) = p.norm_shape().filter(|_| !p.dsm_vars.is_empty()) {
+            // Manoeuvre legs: a sum of norms whose terms may vanish; Gauss-Newton reaches a zero
+            // manoeuvre where a quasi-Newton method zigzags on the kink.
+            let mut rf = |x: &[f64], r: &mut [f64]| worker.residuals(p, x, r, progress);
+            let (x, f, _) = lm_sum_of_norms(
+                &mut rf,
+                &shape,
+                x0,
+                &p.lo,
+                &p.hi,
+                &p.integer,
+                &LocalOptions {
+                    max_evals: hs.local_evals_norms,
+                    fd_step: 1e-7,
+                    f_tol: 1e-10,
+                },
+            );
+            let score = if f.is_finite() { f.min(1e9) } else { 1e9 };
+            return (x, score);
+        }
+        let mut fg = |x: &[f64], g: &mut [f64]| match worker.parts(p, x, g, progress) {
+            Some(v) => v,
+            None => {
+                g.iter_mut().for_each(|v| *v = 1.0);
+                f64::INFINITY
+            }
+        };
+        let r = auglag_box(
+            &mut fg,
+            p.constraints.len(),
+            x0,
+            &p.lo,
+            &p.hi,
+            &p.integer,
+            &LocalOptions {
+                max_evals: hs.local_evals,
+                fd_step: 1e-9,
+                ..Default::default()
+            },
+        );
+        (r.x.clone(), p.penalised(r.f, &r.g))
+    }
+
+    /// A new starting point: now and then a member of the global population, mostly a uniform
+    /// draw whose same-body legs sit just short of a resonance (a whole number of the body's
+    /// periods, within the bounds). Just short, because a zero-revolution arc that returns to a
+    /// body after m of its periods sweeps nearly 360°: a little more time and the arc flips to
+    /// an almost straight one.
+    fn fresh_start(&mut self, p: &Problem, pool: &[Vec<f64>]) -> Vec<f64> {
+        if !pool.is_empty() && self.rng.uniform() < 0.25 {
+            return pool[self.rng.below(pool.len())].clone();
+        }
+        let mut x: Vec<f64> = (0..p.dim())
+            .map(|i| p.lo[i] + self.rng.uniform() * (p.hi[i] - p.lo[i]))
+            .collect();
+        for (k, period) in p.resonant_periods.iter().enumerate() {
+            let Some(period) = period else { continue };
+            let (lo, hi) = (p.lo[k + 1], p.hi[k + 1]);
+            let kmin = (lo / period).ceil().max(1.0) as usize;
+            let kmax = (hi / period).floor() as usize;
+            if kmax >= kmin && self.rng.uniform() < 0.8 {
+                let m = kmin + self.rng.below(kmax - kmin + 1);
+                let t = m as f64 * period * (0.98 + 0.02 * self.rng.uniform());
+                x[k + 1] = clamp_safe(t, lo, hi);
+            }
+        }
+        x
+    }
+
+    /// A move that changes one leg and keeps every other stop's date: redraw the leg's own
+    /// variables (its manoeuvre, the state it starts from, its revolutions) and either move the
+    /// stop at its start (the launch date for the first leg) anywhere inside the bounds or shift it
+    /// by the hop radius, the neighbouring time of flight absorbing the change. Tours with
+    /// manoeuvres have long valleys along which one encounter slides while the others hold
+    /// (launch date against first time of flight, for one); whole-vector perturbations cross them
+    /// only by luck.
+    fn leg_move(&mut self, p: &Problem, hs: &HopSettings) {
+        let legs = p.tour.legs.len();
+        self.trial.copy_from_slice(&self.x);
+        let k = self.rng.below(legs);
+        for i in p.leg_vars(k) {
+            self.trial[i] = p.lo[i] + self.rng.uniform() * (p.hi[i] - p.lo[i]);
+        }
+        // Absolute date of stop k (the launch for k = 0) moves; stop k+1's date holds.
+        let (ti, tj) = if k == 0 { (0, 1) } else { (k, k + 1) };
+        let far = self.rng.uniform() < 0.5;
+        let span = p.hi[ti] - p.lo[ti];
+        let delta = if far {
+            p.lo[ti] + self.rng.uniform() * span - self.x[ti]
+        } else {
+            (2.0 * self.rng.uniform() - 1.0) * hs.radius * span
+        };
+        // x[ti] grows by delta and x[tj] shrinks by it (for k = 0: launch later, first leg
+        // shorter); both stay inside their bounds.
+        let lo_d = (p.lo[ti] - self.x[ti]).max(self.x[tj] - p.hi[tj]);
+        let hi_d = (p.hi[ti] - self.x[ti]).min(self.x[tj] - p.lo[tj]);
+        let d = clamp_safe(delta, lo_d.min(0.0), hi_d.max(0.0));
+        self.trial[ti] = clamp_safe(self.x[ti] + d, p.lo[ti], p.hi[ti]);
+        self.trial[tj] = clamp_safe(self.x[tj] - d, p.lo[tj], p.hi[tj]);
+    }
+
+    /// One hop: perturb the chain's best, descend, keep the result if it is better; restart
+    /// from a fresh point after too many failures.
+    fn hop(
+        &mut self,
+        p: &Problem,
+        pool: &[Vec<f64>],
+        incumbent: &[f64],
+        hs: &HopSettings,
+        want_front: bool,
+        progress: &Progress,
+    ) {
+        let start = if let Some(x0) = self.first.take() {
+            // The designer's own design, refined where it stands before anything else.
+            self.fx = f64::INFINITY;
+            x0
+        } else if self.fails >= hs.fails_before_restart || !self.fx.is_finite() {
+            self.fails = 0;
+            self.fx = f64::INFINITY;
+            if !p.dsm_vars.is_empty() && incumbent.len() == p.dim() && self.rng.uniform() < 0.5 {
+                // Manoeuvre tours: half the restarts leave from the best point of all chains
+                // with one leg redrawn, so effort gathers in the best funnel found so far.
+                self.x.copy_from_slice(incumbent);
+                self.leg_move(p, hs);
+                self.trial.clone()
+            } else {
+                self.fresh_start(p, pool)
+            }
+        } else if !p.dsm_vars.is_empty() && self.rng.uniform() < 0.5 {
+            self.leg_move(p, hs);
+            self.trial.clone()
+        } else {
+            for i in 0..p.dim() {
+                self.trial[i] = if p.integer[i] {
+                    if self.rng.uniform() < 0.25 {
+                        p.lo[i] + self.rng.uniform() * (p.hi[i] - p.lo[i])
+                    } else {
+                        self.x[i]
+                    }
+                } else {
+                    let r = (2.0 * self.rng.uniform() - 1.0) * hs.radius * (p.hi[i] - p.lo[i]);
+                    clamp_safe(self.x[i] + r, p.lo[i], p.hi[i])
+                };
+            }
+            self.trial.clone()
+        };
+        let (x, fx) = self.descend(p, &start, hs, progress);
+        if want_front && fx < 1e8 {
+            // The descent's end point, as scored: a front point when it meets every limit.
+            let mut g = std::mem::take(&mut self.worker.g);
+            if self.worker.parts(p, &x, &mut g, progress).is_some() {
+                self.worker.offer_front(p.total_tof(&x));
+            }
+            self.worker.g = g;
+        }
+        let min_gain = if p.dsm_vars.is_empty() { 1e-10 } else { 1e-6 };
+        // After a restart the chain holds nothing (infinity): any finite result is taken.
+        let better = if self.fx.is_finite() {
+            fx < self.fx - min_gain * self.fx.abs().max(1.0)
+        } else {
+            fx.is_finite()
+        };
+        if better {
+            if fx < self.best.1 {
+                self.best = (x.clone(), fx);
+            }
+            self.x = x;
+            self.fx = fx;
+            self.fails = 0;
+        } else {
+            self.fails += 1;
+        }
+    }
+}
+
+/// Run the optimiser from nowhere in particular (see [`optimize_from`]).
+pub fn optimize(
+    p: &Problem,
+    opts: &OptimizeOptions,
+    progress: &Progress,
+    want_front: bool,
+) -> OptimizeResult {
+    optimize_from(p, opts, progress, want_front, None)
+}
+
+/// Run the optimiser: `start` (a decision vector, typically [`Problem::start`]) is the first
+/// point evaluated and joins the first island's population; then differential evolution on
+/// islands, then basin hopping on chains started from the islands' bests. `progress` receives
+/// the evaluation count and the best value; cancelling it stops within one evaluation per worker.
+pub fn optimize_from(
+    p: &Problem,
+    opts: &OptimizeOptions,
+    progress: &Progress,
+    want_front: bool,
+    start: Option<&[f64]>,
+) -> OptimizeResult {
+    let clock = std::time::Instant::now();
+    let d = p.dim();
+    let np = if opts.population > 0 {
+        opts.population.max(5)
+    } else {
+        (15 * d).clamp(30, 120)
+    };
+    let n_isl = opts.islands.max(1);
+    let hs = opts.hop;
+    let out_of_time = |share: f64| {
+        opts.time_limit_s
+            .is_some_and(|t| clock.elapsed().as_secs_f64() >= t * share)
+    };
+    let cap = opts.max_evals;
+    progress.set_total(cap.min(u64::MAX / 2));
+    let mut islands: Vec<Island> = (0..n_isl)
+        .map(|k| {
+            Island::new(
+                p,
+                np,
+                opts.seed.wrapping_mul(1_000_003).wrapping_add(k as u64),
+            )
+        })
+        .collect();
+    let spent = |isl: &[Island], ch: &[Chain]| -> u64 {
+        isl.iter().map(|i| i.worker.evals).sum::<u64>()
+            + ch.iter().map(|c| c.worker.evals).sum::<u64>()
+    };
+    let mut chains: Vec<Chain> = Vec::new();
+    // The start: the first point evaluated, a member of the first island, and where the first
+    // chain descends from before it hops.
+    let start: Option<Vec<f64>> = start.filter(|x| x.len() == d).map(|x0| {
+        (0..d)
+            .map(|i| clamp_safe(x0[i], p.lo[i], p.hi[i]))
+            .collect()
+    });
+    if let Some(x0) = start.clone() {
+        let isl = &mut islands[0];
+        isl.worker.allowance = cap.min(1);
+        if let Some(v) = isl.worker.score(p, &x0, progress) {
+            // The first island searches around the start first: its other members are drawn
+            // within a tenth of each range of it (a designer who moves a design by weeks expects
+            // the search to find the optimum next to it, and the other islands search the box).
+            for m in isl.pop.iter_mut().skip(1) {
+                for (i, v) in m.iter_mut().enumerate() {
+                    let span = p.hi[i] - p.lo[i];
+                    let y = if p.integer[i] {
+                        *v
+                    } else {
+                        x0[i] + (2.0 * isl.rng.uniform() - 1.0) * START_RADIUS * span
+                    };
+                    *v = clamp_safe(y, p.lo[i], p.hi[i]);
+                }
+            }
+            isl.pop[0] = x0;
+            isl.fit[0] = v;
+            // The first member is scored: the others follow from index 1.
+            isl.unscored -= 1;
+        }
+    }
+    let mut truncated = false;
+    let mut cancelled = false;
+    // Phase 1: differential evolution, a fixed number of generations (blocks of 25), each
+    // island granted its block's evaluations before it starts.
+    let block = 25usize;
+    let block_cost = (block * np + np) as u64;
+    let de_evals = (hs.de_generations * np * n_isl) as u64;
+    let mut first = true;
+    loop {
+        if progress.is_cancelled() {
+            cancelled = true;
+            break;
+        }
+        let used = spent(&islands, &chains);
+        if (!first && used >= de_evals) || out_of_time(hs.de_time_share) {
+            break;
+        }
+        let left = cap.saturating_sub(used);
+        let grant = block_cost.min(left / n_isl as u64);
+        if grant < block_cost {
+            truncated = true;
+        }
+        if grant == 0 {
+            break;
+        }
+        islands.par_iter_mut().for_each(|isl| {
+            isl.worker.allowance = grant;
+            if !isl.score_members(p, progress) {
+                return;
+            }
+            for _ in 0..block {
+                if !isl.generation(p, want_front, progress) {
+                    return;
+                }
+                if isl.stall > 150 && !isl.restart(p, progress) {
+                    return;
+                }
+            }
+        });
+        first = false;
+        let now = spent(&islands, &chains);
+        progress.add(now - used);
+        if truncated {
+            break;
+        }
+        // Ring migration: island k's best replaces island k+1's worst.
+        let bests: Vec<(Vec<f64>, f64)> = islands
+            .iter()
+            .map(|isl| {
+                let b = isl.best_index();
+                (isl.pop[b].clone(), isl.fit[b])
+            })
+            .collect();
+        for k in 0..n_isl {
+            let (x, f) = &bests[(k + n_isl - 1) % n_isl];
+            let isl = &mut islands[k];
+            let w = (0..isl.fit.len())
+                .max_by(|&a, &b| isl.fit[a].total_cmp(&isl.fit[b]))
+                .unwrap_or(0);
+            if *f < isl.fit[w] {
+                isl.pop[w].clone_from(x);
+                isl.fit[w] = *f;
+            }
+        }
+        report(p, progress, &islands, &chains, now);
+    }
+    // Phase 2: basin hopping in lock-step rounds.
+    if !truncated && !cancelled {
+        let pool: Vec<Vec<f64>> = islands
+            .iter()
+            .flat_map(|isl| {
+                let mut idx: Vec<usize> = (0..isl.fit.len()).collect();
+                idx.sort_by(|&a, &b| isl.fit[a].total_cmp(&isl.fit[b]));
+                idx.into_iter()
+                    .take(10)
+                    .map(|i| isl.pop[i].clone())
+                    .collect::<Vec<_>>()
+            })
+            .collect();
+        chains = (0..hs.chains.max(1))
+            .map(|k| {
+                let isl = &islands[k % n_isl];
+                let b = isl.best_index();
+                Chain {
+                    rng: Rng::new(opts.seed.wrapping_mul(7_919).wrapping_add(100 + k as u64)),
+                    x: isl.pop[b].clone(),
+                    // Chains beyond the islands' count start fresh.
+                    fx: if k < n_isl { isl.fit[b] } else { f64::INFINITY },
+                    best: (isl.pop[b].clone(), isl.fit[b]),
+                    fails: 0,
+                    trial: vec![0.0; d],
+                    worker: Worker::new(p),
+                    first: if k == 0 { start.clone() } else { None },
+                }
+            })
+            .collect();
+        let n_ch = chains.len() as u64;
+        let hop_cost = (hs.local_evals.max(hs.local_evals_norms) + 8 * d + 64) as u64;
+        loop {
+            if progress.is_cancelled() {
+                cancelled = true;
+                break;
+            }
+            let used = spent(&islands, &chains);
+            if out_of_time(1.0) {
+                break;
+            }
+            let grant = hop_cost.min(cap.saturating_sub(used) / n_ch);
+            if grant == 0 {
+                break;
+            }
+            let last = grant < hop_cost;
+            let incumbent: Vec<f64> = chains
+                .iter()
+                .map(|c| &c.best)
+                .min_by(|a, b| a.1.total_cmp(&b.1))
+                .filter(|b| b.1.is_finite())
+                .map(|b| b.0.clone())
+                .unwrap_or_default();
+            chains.par_iter_mut().for_each(|c| {
+                c.worker.allowance = grant;
+                c.hop(p, &pool, &incumbent, &hs, want_front, progress);
+            });
+            let now = spent(&islands, &chains);
+            progress.add(now - used);
+            report(p, progress, &islands, &chains, now);
+            if last {
+                break;
+            }
+        }
+    }
+    if progress.is_cancelled() {
+        cancelled = true;
+    }
+    // The answer: the best point any worker evaluated, in a fixed order of workers.
+    let workers: Vec<&Worker> = islands
+        .iter()
+        .map(|i| &i.worker)
+        .chain(chains.iter().map(|c| &c.worker))
+        .collect();
+    let (x, value, objective, feasible) =
+        best_of(&workers).unwrap_or_else(|| (p.lo.clone(), 1e9, f64::INFINITY, false));
+    let evaluations = spent(&islands, &chains);
+    progress.offer_best(value);
+    let mut front = Vec::new();
+    for w in &workers {
+        for &pt in &w.front {
+            add_front(&mut front, pt);
+        }
+    }
+    front.sort_by(|a, b| a.0.total_cmp(&b.0));
+    OptimizeResult {
+        schedule: p.schedule_at(&x),
+        x,
+        value,
+        objective,
+        feasible,
+        evaluations,
+        front,
+        cancelled,
+    }
+}
+
+/// The best point of all workers: the one with the smallest objective among those that meet
+/// every limit, else the smallest penalised score; ties go to the earlier worker. Returns the
+/// point, its score, its objective and whether it meets every limit.
+fn best_of(workers: &[&Worker]) -> Option<(Vec<f64>, f64, f64, bool)> {
+    let mut best: Option<(&Vec<f64>, f64, f64)> = None;
+    for w in workers {
+        if let Some((x, v)) = &w.feasible {
+            if best.is_none_or(|b| *v < b.1) {
+                best = Some((x, *v, *v));
+            }
+        }
+    }
+    if let Some((x, v, o)) = best {
+        return Some((x.clone(), v, o, true));
+    }
+    for w in workers {
+        if let Some((x, v)) = &w.any {
+            if best.is_none_or(|b| *v < b.1) {
+                best = Some((x, *v, w.any_objective));
+            }
+        }
+    }
+    best.map(|(x, v, o)| (x.clone(), v, o, false))
+}
+
+fn report(p: &Problem, progress: &Progress, islands: &[Island], chains: &[Chain], evals: u64) {
+    let workers: Vec<&Worker> = islands
+        .iter()
+        .map(|i| &i.worker)
+        .chain(chains.iter().map(|c| &c.worker))
+        .collect();
+    if let Some((_, v, _, feasible)) = best_of(&workers) {
+        progress.offer_best(v);
+        progress.set_message(format!(
+            "{evals} evaluations, best {}{}",
+            p.objective.text(v),
+            if feasible {
+                ""
+            } else {
+                " (no point meets every limit yet)"
+            }
+        ));
+    }
+}
