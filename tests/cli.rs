@@ -403,3 +403,83 @@ fn fidelity_reports_every_encounter_in_text_and_json() {
         assert!(c["correction_dv_km_s"].as_f64().is_some(), "{c}");
     }
 }
+
+#[test]
+fn optimize_says_plainly_when_no_design_meets_the_limits() {
+    // Earth to Jupiter direct needs C3 near 80 km²/s² (common practice): with at most 5 the
+    // search must say that nothing meets every limit, name the limit, and exit with status 3.
+    let dir = tempfile::tempdir().unwrap();
+    let f = dir.path().join("ej.tour.ron");
+    std::fs::write(
+        &f,
+        r#"(format: "tourwright-design", version: 1, name: "E-J at C3 5",
+            stops: [(body: "Earth", epoch: "2031-06-01"), (body: "Jupiter", epoch: "2034-01-01")],
+            launch: (max_c3_km2_s2: Some(5.0)))"#,
+    )
+    .unwrap();
+    let out_file = dir.path().join("closest.tour.ron");
+    let out = bin()
+        .args(["optimize", "--evals", "20000", "--out"])
+        .arg(&out_file)
+        .arg(&f)
+        .output()
+        .unwrap();
+    assert_eq!(
+        out.status.code(),
+        Some(3),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8(out.stdout).unwrap();
+    let first = text.lines().next().unwrap();
+    assert!(
+        first.starts_with("No design meeting every limit was found"),
+        "{text}"
+    );
+    assert!(
+        text.contains("launch C3") && text.contains("(by "),
+        "{text}"
+    );
+    assert!(text.contains("start:  launch v∞ + spacecraft Δv") && text.contains("km/s"));
+    // The closest design is still written, and says so in its notes.
+    let d = tourwright::mission::files::load(&out_file).unwrap();
+    assert!(d.notes.contains("no design meeting every limit"));
+}
+
+#[test]
+fn optimize_reports_the_designs_own_objective_and_never_writes_over_its_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = dir.path().join("tern.tour.ron");
+    std::fs::copy(sample("tern-saturn-ejs.tour.ron"), &f).unwrap();
+    let before = std::fs::read(&f).unwrap();
+    // --out naming the input is refused (and the file stays as it was).
+    let out = bin()
+        .args(["optimize", "--evals", "5000", "--out"])
+        .arg(&f)
+        .arg(&f)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("--in-place"));
+    assert_eq!(std::fs::read(&f).unwrap(), before);
+    // The start the CLI prints is the design's objective as eval computes it.
+    let eval = bin().args(["eval", "--json"]).arg(&f).output().unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&eval.stdout).unwrap();
+    let objective =
+        v["launch"]["vinf_km_s"].as_f64().unwrap() + v["ledger"]["total_dv_km_s"].as_f64().unwrap();
+    let out = bin()
+        .args(["optimize", "--evals", "20000", "--in-place", "--out"])
+        .arg(&f)
+        .arg(&f)
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let text = String::from_utf8(out.stdout).unwrap();
+    let start = text.lines().find(|l| l.starts_with("start:")).unwrap();
+    assert!(
+        start.contains(&format!("{objective:.4} km/s")),
+        "{start} vs {objective}"
+    );
+    let result = text.lines().find(|l| l.starts_with("result:")).unwrap();
+    assert!(result.contains("meets every limit"), "{result}");
+}

@@ -320,7 +320,7 @@ pub enum Command {
         #[arg(long)]
         max_c3: Option<f64>,
         /// Evaluations per sequence.
-        #[arg(long, default_value_t = 60_000)]
+        #[arg(long, default_value_t = tourwright_search::explore::DEFAULT_EVALS_PER_SEQUENCE)]
         evals: u64,
         /// Seed.
         #[arg(long, default_value_t = 1)]
@@ -330,8 +330,9 @@ pub enum Command {
         /// (TOURWRIGHT_KERNEL); default: mean-elements.
         #[arg(long, value_parser = EphemerisChoice::parse)]
         ephemeris: Option<EphemerisChoice>,
-        /// Deep-space manoeuvres on explored legs (MGA-1DSM).
-        #[arg(long, value_enum, default_value = "none")]
+        /// Deep-space manoeuvres on explored legs (MGA-1DSM): none, resonant (legs that return
+        /// to the body they left, the default) or every.
+        #[arg(long, value_enum, default_value = "resonant")]
         dsm: explore::DsmArg,
         /// Explore only share K of N (1-based K), e.g. 3/16: for array jobs of a scheduler.
         /// Writes JSON lines to --jsonl (or to standard output).

@@ -118,33 +118,6 @@ impl Assessment {
     pub fn breach_lines(&self) -> Vec<String> {
         self.breaches.iter().map(breach_text).collect()
     }
-
-    /// True when `self` is a better design than `other`: one that meets every limit beats one
-    /// that does not; between two that do (or two that do not), the smaller score wins (for two
-    /// that do not, the smaller penalised score: see [`Assessment::closeness`]).
-    pub fn better_than(&self, other: &Assessment) -> bool {
-        match (self.feasible(), other.feasible()) {
-            (true, false) => true,
-            (false, true) => false,
-            (true, true) => self.score < other.score,
-            (false, false) => self.closeness() < other.closeness(),
-        }
-    }
-
-    /// How far from meeting its limits a design is, for ranking designs that all break some:
-    /// the number of broken limits first (a failure to evaluate counts as many), then the score.
-    pub fn closeness(&self) -> (usize, f64) {
-        let failures = self.breaches.iter().filter(|w| w.is_failure()).count();
-        let n = self.breaches.len() + 1000 * failures;
-        (
-            n,
-            if self.score.is_finite() {
-                self.score
-            } else {
-                f64::MAX
-            },
-        )
-    }
 }
 
 /// One broken limit in words: the warning and, where it has a measure, by how much.

@@ -27,8 +27,11 @@ use tourwright_mission::{LimitSet, Objective};
 use crate::job::Progress;
 use crate::optimize::{OptimizeOptions, search_design};
 
-/// Default optimiser evaluations per explored sequence (CLI and workbench).
-pub const DEFAULT_EVALS_PER_SEQUENCE: u64 = 60_000;
+/// Default optimiser evaluations per explored sequence (CLI and workbench). Measured on flown
+/// tours (DEVELOPERS.md): with a manoeuvre on resonant legs, 60 000 finds Galileo's 1989
+/// E-V-E-E-J launch 16 days from its flown date and 200 000 one day from it; 150 000 keeps a
+/// three-swing-by survey of two bodies to a few seconds.
+pub const DEFAULT_EVALS_PER_SEQUENCE: u64 = 150_000;
 
 /// What to explore.
 #[derive(Clone, Debug, PartialEq)]
@@ -66,9 +69,11 @@ pub struct ExploreSpec {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default, serde::Serialize, serde::Deserialize)]
 pub enum DsmPolicy {
     /// None: Lambert legs, powered swing-bys within their limit.
-    #[default]
     None,
-    /// Legs that return to the body they left (Earth-Earth, Venus-Venus): v∞ leveraging.
+    /// Legs that return to the body they left (Earth-Earth, Venus-Venus): v∞ leveraging. The
+    /// default: without it the v∞-leveraging tours flown to Jupiter rank with the wrong launch
+    /// dates (DEVELOPERS.md).
+    #[default]
     Resonant,
     /// Every leg.
     Every,

@@ -272,6 +272,43 @@ fn direct_vs_assist_finds_the_grid_best() {
     assert!(c.summary().starts_with("The tour "));
 }
 
+#[test]
+fn direct_vs_assist_honours_the_launch_limits_or_says_none_meets_them() {
+    let p = samples()
+        .into_iter()
+        .find(|p| p.to_string_lossy().contains("lantern"))
+        .unwrap();
+    let mut d = files::load(&p).unwrap();
+    let mut o = DirectOptions::for_design(&d);
+    o.grid = 60;
+    o.measure = Objective::TotalDvWithLaunchVinf;
+    // Earth to Jupiter direct needs C3 near 80 km²/s² (a Hohmann transfer alone needs v∞
+    // 8.8 km/s; common practice): with Lantern's limit of 25 none meets it, and it says so.
+    let c = direct::compare(&d, &o, &Progress::new()).unwrap();
+    assert!(c.direct_eval.launch.c3 > 25.0);
+    assert!(!c.launch_breaches.is_empty());
+    let note = c.limits_note().unwrap();
+    assert!(
+        note.starts_with("No direct transfer") && note.contains("launch C3"),
+        "{note}"
+    );
+    // With room for it, the transfer chosen meets the limit and nothing is said.
+    d.launch.max_c3_km2_s2 = Some(100.0);
+    let c = direct::compare(&d, &o, &Progress::new()).unwrap();
+    assert!(c.direct_eval.launch.c3 <= 100.0);
+    assert!(c.launch_breaches.is_empty() && c.limits_note().is_none());
+    // A declination band is honoured the same way.
+    d.launch.min_dla_deg = Some(-10.0);
+    d.launch.max_dla_deg = Some(10.0);
+    let c = direct::compare(&d, &o, &Progress::new()).unwrap();
+    let dla = c.direct_eval.launch.dla_deg;
+    if c.launch_breaches.is_empty() {
+        assert!((-10.0..=10.0).contains(&dla), "DLA {dla}");
+    } else {
+        assert!(c.limits_note().unwrap().contains("declination"));
+    }
+}
+
 /// Spin until `p` has counted at least `n` evaluations (the work is on another thread).
 fn wait_for_evals(p: &Progress, n: u64) {
     while p.evaluations() < n {

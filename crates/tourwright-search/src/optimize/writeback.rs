@@ -13,7 +13,7 @@ use tourwright_mission::{
 };
 
 use super::evolve::{OptimizeOptions, optimize_from};
-use super::problem::{Problem, ProblemError};
+use super::problem::{Problem, ProblemError, Workspace};
 use crate::job::Progress;
 
 /// What a search of a design gives back.
@@ -123,12 +123,14 @@ pub fn search_design(
             Err(_) => None,
         }
     };
+    // Neither meets every limit: the closer one by the search's own penalised score.
+    let start_penalised = p.score(&x0, &mut Workspace::new(&p));
     let take = match &candidate {
         Some((_, a)) => match (a.feasible(), start.feasible()) {
             (true, true) => a.score <= start.score,
             (true, false) => true,
             (false, true) => false,
-            (false, false) => a.closeness() < start.closeness(),
+            (false, false) => r.value < start_penalised,
         },
         None => false,
     };
