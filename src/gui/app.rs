@@ -512,9 +512,10 @@ impl TourwrightApp {
             if settings.show_search {
                 egui::Panel::right("search")
                     .resizable(true)
-                    .default_size(330.0)
+                    .default_size(360.0)
+                    .size_range(280.0..=560.0)
                     .show(ui, |ui| {
-                        egui::ScrollArea::vertical()
+                        egui::ScrollArea::both()
                             .show(ui, |ui| actions.extend(self.views.search.ui(ui, &vc)));
                     });
             }

@@ -207,13 +207,16 @@ impl SearchPanel {
         let lines = o.lines();
         for (i, l) in lines.iter().enumerate() {
             let t = RichText::new(l);
-            ui.label(if i == 0 && !o.feasible() {
-                t.color(style::error_color(dark)).strong()
-            } else if i == 0 {
-                t.strong()
-            } else {
-                t
-            });
+            ui.add(
+                egui::Label::new(if i == 0 && !o.feasible() {
+                    t.color(style::error_color(dark)).strong()
+                } else if i == 0 {
+                    t.strong()
+                } else {
+                    t
+                })
+                .wrap(),
+            );
         }
         let stale = revision != vc.revision;
         let pv = if stale || o.shape.mismatch(&TourShape::of(vc.design)).is_some() {
@@ -276,6 +279,7 @@ impl SearchPanel {
         }
         if !o.front.is_empty() {
             let obj = o.result.objective;
+            ui.add_space(6.0);
             ui.label(format!(
                 "trade-off front: {} points from {:.0} to {:.0} days",
                 o.front.len(),
@@ -285,7 +289,7 @@ impl SearchPanel {
             egui_plot::Plot::new("front")
                 .height(120.0)
                 .x_axis_label("total TOF (days)")
-                .y_axis_label(format!("{} ({})", obj.label(), obj.unit()))
+                .y_axis_label(format!("objective ({})", obj.unit()))
                 .show(ui, |pl| {
                     let pts: Vec<[f64; 2]> = o
                         .front

@@ -229,10 +229,21 @@ pub fn enumerate(spec: &ExploreSpec) -> Vec<Vec<Planet>> {
     out
 }
 
-/// Build the starting design for a sequence: nominal legs at the middle of their bounds.
+/// Build the starting design for a sequence: nominal legs at the middle of their bounds. The
+/// template gives the spacecraft, the launch vehicle and the launch limits; its arrival goal
+/// only when it arrives at the same body (a capture orbit about one planet means nothing about
+/// another), else the tour flies by.
 pub fn design_for(seq: &[Planet], spec: &ExploreSpec, template: &MissionDesign) -> MissionDesign {
     let mut d = template.clone();
     d.name = format!("{} explored", label(seq));
+    let same_target = template
+        .stops
+        .last()
+        .and_then(|s| Planet::from_name(&s.body))
+        .is_some_and(|p| Some(&p) == seq.last());
+    if !same_target {
+        d.arrival = tourwright_mission::design::ArrivalGoal::FlybyOnly;
+    }
     let (a, b) = (spec.launch.0, spec.launch.1);
     let mut t = a.plus_seconds(0.5 * (b.tdb().0 - a.tdb().0));
     d.stops = Vec::with_capacity(seq.len());
@@ -319,6 +330,11 @@ pub fn explore(
             survivors.len()
         ));
         let d = design_for(s, spec, template);
+        if let Err(e) = tourwright_mission::files::validate(&d) {
+            ex.pruned
+                .push((label(s), format!("the sequence cannot be searched: {e}")));
+            continue;
+        }
         let inner = progress.child();
         let outcome = search_design(
             &d,
