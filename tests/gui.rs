@@ -1005,3 +1005,41 @@ fn the_search_panel_shows_and_edits_the_search_bounds() {
     menu(&mut h, "Edit", "Undo");
     assert_eq!(h.state().design().search.leg_tof[0], before);
 }
+
+#[test]
+fn explorer_rows_show_their_objective_and_the_limits_they_break() {
+    let mut h = harness(0);
+    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+    {
+        let s = &mut h.state_mut().views.search;
+        s.via = vec![tourwright::astro::bodies::Planet::Venus];
+        s.max_swingbys = 1;
+        s.evals_per_sequence = 20_000;
+    }
+    h.get_by_label("Explore sequences").click();
+    h.run_steps(1);
+    wait_for_jobs(&mut h);
+    let ex = h.state().jobs.exploration.clone().expect("an exploration");
+    h.get_by_label("objective (km/s)");
+    h.get_by_label("limits");
+    // Lantern's launch limit (C3 at most 25 km²/s²) cannot reach Jupiter directly (a Hohmann
+    // transfer needs v∞ 8.8 km/s, common practice): E-J is pruned, with the reason.
+    assert!(
+        ex.pruned
+            .iter()
+            .any(|(s, why)| s == "E-J" && why.contains("launch energy")),
+        "{:?}",
+        ex.pruned
+    );
+    h.get_by_label("1 pruned");
+    // The row that was searched says whether it meets every limit, and if not, which it breaks.
+    let evj = ex.ranked.iter().find(|c| c.label == "E-V-J").unwrap();
+    if evj.feasible {
+        h.get_by_label("met");
+    } else {
+        assert!(!evj.breaches.is_empty());
+        h.get_by_label_contains("broken: ");
+    }
+}

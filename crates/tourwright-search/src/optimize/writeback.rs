@@ -70,7 +70,13 @@ impl SearchOutcome {
         let change = if r.score.is_finite() && self.start.score.is_finite() && !self.kept_start {
             let d =
                 r.objective.display_value(r.score) - r.objective.display_value(self.start.score);
-            format!(" ({d:+.*} {})", r.objective.decimals(), r.objective.unit())
+            let p = r.objective.decimals();
+            let step = 10f64.powi(-(p as i32));
+            if d.abs() < 0.5 * step {
+                format!(" (within {step} {} of the start)", r.objective.unit())
+            } else {
+                format!(" ({d:+.p$} {})", r.objective.unit())
+            }
         } else {
             String::new()
         };
