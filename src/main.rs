@@ -7,8 +7,8 @@ fn main() {
     let cli = Cli::parse();
     let result = match cli.command {
         None => tourwright::gui::run(None).map_err(CliError::from),
-        Some(Command::Gui { file }) => tourwright::gui::run(file).map_err(CliError::from),
-        Some(cmd) => tourwright::cli::run(cmd),
+        Some(Command::Gui(a)) => tourwright::gui::run(a.file).map_err(CliError::from),
+        Some(cmd) => tourwright::cli::run(cmd, cli.quiet),
     };
     if let Err(e) = result {
         if !e.message.is_empty() {

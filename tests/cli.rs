@@ -296,18 +296,21 @@ fn ephemeris_model_is_chosen_per_command() {
 fn state_prints_and_writes_planet_states_from_each_source() {
     // One epoch: J2000 Earth-Moon barycentre from the mean elements, near 1 AU (0.983 AU early in
     // January: perihelion; common practice).
-    let out = bin()
-        .args(["state", "Earth", "--at", "2000-01-01T12:00:00 TDB"])
-        .output()
-        .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let text = String::from_utf8(out.stdout).unwrap();
-    let row = text.lines().find(|l| l.starts_with("2000-01-01")).unwrap();
-    let f: Vec<f64> = row.split(',').skip(2).map(|x| x.parse().unwrap()).collect();
+    let state = |args: &[&str]| -> Vec<f64> {
+        let out = bin().args(args).arg("--json").output().unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let s = &v["states"][0];
+        ["x_km", "y_km", "z_km"]
+            .iter()
+            .map(|k| s[k].as_f64().unwrap())
+            .collect()
+    };
+    let f = state(&["state", "Earth", "--at", "2000-01-01T12:00:00 TDB"]);
     let r_au = (f[0] * f[0] + f[1] * f[1] + f[2] * f[2]).sqrt() / 149_597_870.7;
     assert!((r_au - 0.9833).abs() < 0.001, "{r_au}");
     // A range with a step, to CSV, in the benchmark model.
@@ -333,8 +336,24 @@ fn state_prints_and_writes_planet_states_from_each_source() {
         "{}",
         String::from_utf8_lossy(&out.stderr)
     );
-    let text = std::fs::read_to_string(&csv).unwrap();
-    assert_eq!(text.lines().count(), 1 + 13);
+    // Any CSV reader takes it: a header, then one record per state.
+    let mut r = csv::Reader::from_path(&csv).unwrap();
+    assert_eq!(
+        r.headers().unwrap().iter().collect::<Vec<_>>(),
+        [
+            "epoch_tdb",
+            "body",
+            "x_km",
+            "y_km",
+            "z_km",
+            "vx_km_s",
+            "vy_km_s",
+            "vz_km_s"
+        ]
+    );
+    let records: Vec<csv::StringRecord> = r.records().map(|x| x.unwrap()).collect();
+    assert_eq!(records.len(), 13);
+    assert!(records[0][2].parse::<f64>().is_ok());
     // A kernel that is not there: a clear error naming it.
     let out = bin()
         .args(["state", "Mars", "--at", "2030-01-01", "--ephemeris"])
@@ -350,24 +369,7 @@ fn state_prints_and_writes_planet_states_from_each_source() {
     // With DE421 (CI): Mars from the kernel and from the mean elements agree to the table's
     // accuracy (well under 0.001 AU at 2030).
     if let Some(k) = std::env::var_os("TOURWRIGHT_DE421") {
-        let pick = |eph: &str| -> Vec<f64> {
-            let out = bin()
-                .args(["state", "Mars", "--at", "2030-01-01", "--ephemeris", eph])
-                .output()
-                .unwrap();
-            assert!(
-                out.status.success(),
-                "{}",
-                String::from_utf8_lossy(&out.stderr)
-            );
-            let t = String::from_utf8(out.stdout).unwrap();
-            let row = t
-                .lines()
-                .find(|l| l.starts_with("2030"))
-                .unwrap()
-                .to_string();
-            row.split(',').skip(2).map(|x| x.parse().unwrap()).collect()
-        };
+        let pick = |eph: &str| state(&["state", "Mars", "--at", "2030-01-01", "--ephemeris", eph]);
         let a = pick(&format!("kernel:{}", k.to_string_lossy()));
         let b = pick("mean-elements");
         let d = ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt();
@@ -482,4 +484,442 @@ fn optimize_reports_the_designs_own_objective_and_never_writes_over_its_input() 
     );
     let result = text.lines().find(|l| l.starts_with("result:")).unwrap();
     assert!(result.contains("meets every limit"), "{result}");
+}
+
+/// A copy of a sample in a temporary folder.
+fn copy_of(name: &str, dir: &Path) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::copy(sample(name), &p).unwrap();
+    p
+}
+
+#[test]
+fn no_command_writes_over_its_input_or_a_design_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = copy_of("lantern-jupiter-evej.tour.ron", dir.path());
+    let other = copy_of("tern-saturn-ejs.tour.ron", dir.path());
+    let before = std::fs::read(&f).unwrap();
+    let other_before = std::fs::read(&other).unwrap();
+    let refused = |args: Vec<&std::ffi::OsStr>| {
+        let out = bin().args(args).output().unwrap();
+        assert_eq!(
+            out.status.code(),
+            Some(1),
+            "{}",
+            String::from_utf8_lossy(&out.stdout)
+        );
+        String::from_utf8(out.stderr).unwrap()
+    };
+    let (fa, oa) = (f.as_os_str(), other.as_os_str());
+    // Exports over the input, or over another design file.
+    for flag in ["--csv", "--ledger", "--samples", "--oem"] {
+        let e = refused(vec!["export".as_ref(), fa, flag.as_ref(), fa]);
+        assert!(e.contains("never replaces"), "{e}");
+        let e = refused(vec!["export".as_ref(), fa, flag.as_ref(), oa]);
+        assert!(e.contains("holds a design"), "{e}");
+    }
+    // The optimiser's front, a window map's CSV.
+    let e = refused(vec![
+        "optimize".as_ref(),
+        fa,
+        "--evals".as_ref(),
+        "1000".as_ref(),
+        "--out".as_ref(),
+        dir.path().join("x.tour.ron").as_os_str(),
+        "--front".as_ref(),
+        fa,
+    ]);
+    assert!(e.contains("--front"), "{e}");
+    let e = refused(vec![
+        "window".as_ref(),
+        "--design".as_ref(),
+        fa,
+        "--steps".as_ref(),
+        "10".as_ref(),
+        "--csv".as_ref(),
+        fa,
+    ]);
+    assert!(e.contains("--csv"), "{e}");
+    // Design outputs over the input need --in-place.
+    for cmd in [
+        vec!["retarget", "--stop", "2"],
+        vec!["dsm", "--leg", "2", "--at", "0.5"],
+        vec!["optimize", "--evals", "1000"],
+    ] {
+        let mut args: Vec<&std::ffi::OsStr> = vec![cmd[0].as_ref(), fa];
+        args.extend(cmd[1..].iter().map(|s| -> &std::ffi::OsStr { s.as_ref() }));
+        args.extend(["--out".as_ref(), fa]);
+        let e = refused(args);
+        assert!(e.contains("--in-place"), "{e}");
+    }
+    assert_eq!(std::fs::read(&f).unwrap(), before);
+    assert_eq!(std::fs::read(&other).unwrap(), other_before);
+    // With --in-place the design is replaced, and still loads.
+    let out = bin()
+        .args(["dsm"])
+        .arg(&f)
+        .args(["--leg", "3", "--at", "0.4", "--in-place", "--out"])
+        .arg(&f)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert_ne!(std::fs::read(&f).unwrap(), before);
+    tourwright::mission::files::load(&f).unwrap();
+}
+
+#[cfg(unix)]
+#[test]
+fn saves_write_through_links_and_refuse_special_files() {
+    let dir = tempfile::tempdir().unwrap();
+    let target = copy_of("lantern-jupiter-evej.tour.ron", dir.path());
+    let link = dir.path().join("link.tour.ron");
+    std::os::unix::fs::symlink(&target, &link).unwrap();
+    let src = dir.path().join("src.tour.ron");
+    std::fs::copy(sample("lantern-jupiter-evej.tour.ron"), &src).unwrap();
+    let out = bin()
+        .arg("dsm")
+        .arg(&src)
+        .args(["--leg", "3", "--at", "0.3", "--out"])
+        .arg(&link)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    // Still a link; its target holds the new design.
+    assert!(
+        std::fs::symlink_metadata(&link)
+            .unwrap()
+            .file_type()
+            .is_symlink()
+    );
+    let d = tourwright::mission::files::load(&target).unwrap();
+    assert!(matches!(
+        d.legs[2].dsm.unwrap().at,
+        tourwright::mission::design::DsmTime::Fraction(f) if (f - 0.3).abs() < 1e-12
+    ));
+    // No temporary file is left behind.
+    let left: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().to_string())
+        .filter(|n| n.ends_with(".tmp"))
+        .collect();
+    assert!(left.is_empty(), "{left:?}");
+    // A device is not a design file: refused, and left as it was.
+    let out = bin()
+        .arg("dsm")
+        .arg(&src)
+        .args(["--leg", "3", "--at", "0.3", "--out", "/dev/null"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("not a regular file"));
+    let m = std::fs::metadata("/dev/null").unwrap();
+    assert!(!m.is_file());
+}
+
+#[test]
+fn a_dash_reads_standard_input_and_writes_standard_output() {
+    use std::io::Write as _;
+    use std::process::Stdio;
+    let text = std::fs::read_to_string(sample("tern-saturn-ejs.tour.ron")).unwrap();
+    let mut child = bin()
+        .args(["eval", "-", "--json"])
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .spawn()
+        .unwrap();
+    child
+        .stdin
+        .take()
+        .unwrap()
+        .write_all(text.as_bytes())
+        .unwrap();
+    let out = child.wait_with_output().unwrap();
+    assert!(out.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["sequence"], "E-J-S");
+    // An export to standard output is the CSV alone.
+    let out = bin()
+        .arg("export")
+        .arg(sample("tern-saturn-ejs.tour.ron"))
+        .args(["--ledger", "-"])
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let mut r = csv::Reader::from_reader(&out.stdout[..]);
+    assert_eq!(r.headers().unwrap().get(0), Some("item"));
+    assert!(r.records().count() >= 3);
+    // A design in, a design out: the words go to standard error, the design to standard output.
+    let mut child = bin()
+        .args(["dsm", "-", "--leg", "2", "--at", "0.5", "--out", "-"])
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    child
+        .stdin
+        .take()
+        .unwrap()
+        .write_all(text.as_bytes())
+        .unwrap();
+    let out = child.wait_with_output().unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let d = tourwright::mission::files::from_str(
+        &String::from_utf8(out.stdout).unwrap(),
+        Path::new("stdout"),
+    )
+    .unwrap();
+    assert!(d.legs[1].dsm.is_some());
+    assert!(String::from_utf8_lossy(&out.stderr).contains("Ledger"));
+}
+
+#[test]
+fn json_of_every_command_parses_back() {
+    let dir = tempfile::tempdir().unwrap();
+    let tern = sample("tern-saturn-ejs.tour.ron");
+    let lantern = sample("lantern-jupiter-evej.tour.ron");
+    let o = |n: &str| dir.path().join(n).to_string_lossy().to_string();
+    let cases: Vec<(Vec<String>, &str)> = vec![
+        (vec!["eval".into(), tern.to_string_lossy().into()], "stops"),
+        (
+            vec![
+                "state".into(),
+                "Mars".into(),
+                "--at".into(),
+                "2030-01-01".into(),
+            ],
+            "states",
+        ),
+        (
+            vec![
+                "tisserand".into(),
+                "--bodies".into(),
+                "V,E".into(),
+                "--vinf".into(),
+                "3".into(),
+            ],
+            "contours",
+        ),
+        (
+            vec!["fidelity".into(), tern.to_string_lossy().into()],
+            "encounters",
+        ),
+        (
+            vec![
+                "compare".into(),
+                tern.to_string_lossy().into(),
+                "--window-days".into(),
+                "30".into(),
+            ],
+            "summary",
+        ),
+        (
+            vec![
+                "window".into(),
+                "--from".into(),
+                "E".into(),
+                "--to".into(),
+                "M".into(),
+                "--depart".into(),
+                "2033-01-01..2033-06-01".into(),
+                "--tof".into(),
+                "150..350".into(),
+                "--steps".into(),
+                "20".into(),
+            ],
+            "minima",
+        ),
+        (
+            vec![
+                "retarget".into(),
+                lantern.to_string_lossy().into(),
+                "--stop".into(),
+                "2".into(),
+                "--out".into(),
+                o("r.tour.ron"),
+            ],
+            "miss_km",
+        ),
+        (
+            vec![
+                "dsm".into(),
+                tern.to_string_lossy().into(),
+                "--leg".into(),
+                "2".into(),
+                "--at".into(),
+                "0.5".into(),
+                "--out".into(),
+                o("d.tour.ron"),
+            ],
+            "dsms",
+        ),
+        (
+            vec![
+                "optimize".into(),
+                tern.to_string_lossy().into(),
+                "--evals".into(),
+                "5000".into(),
+                "--out".into(),
+                o("o.tour.ron"),
+            ],
+            "result",
+        ),
+        (
+            vec![
+                "explore".into(),
+                "--from".into(),
+                "E".into(),
+                "--to".into(),
+                "M".into(),
+                "--launch".into(),
+                "2033-01-01..2033-12-31".into(),
+                "--via".into(),
+                "V".into(),
+                "--max-swingbys".into(),
+                "1".into(),
+                "--evals".into(),
+                "3000".into(),
+            ],
+            "ranked",
+        ),
+    ];
+    for (args, key) in cases {
+        let out = bin().args(&args).arg("--json").output().unwrap();
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout)
+            .unwrap_or_else(|e| panic!("{args:?}: {e}: {}", String::from_utf8_lossy(&out.stdout)));
+        assert!(!v[key].is_null(), "{args:?}: no {key}");
+    }
+}
+
+#[cfg(unix)]
+#[test]
+fn ctrl_c_stops_the_optimiser_and_keeps_the_best_design() {
+    let dir = tempfile::tempdir().unwrap();
+    let out_file = dir.path().join("best.tour.ron");
+    let child = bin()
+        .arg("optimize")
+        .arg(sample("lantern-jupiter-evej.tour.ron"))
+        .args(["--evals", "500000000", "--out"])
+        .arg(&out_file)
+        .stdout(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(1500));
+    let st = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(st.success());
+    let out = child.wait_with_output().unwrap();
+    assert_eq!(out.status.code(), Some(130));
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("interrupted"), "{text}");
+    // The best design so far was written, loads, and meets every limit (the sample does).
+    let d = tourwright::mission::files::load(&out_file).unwrap();
+    let (_, e) = tourwright::mission::evaluate_design(&d);
+    assert!(!e.violates_limits(), "{:?}", e.warnings);
+}
+
+#[test]
+fn clap_checks_conflicts_and_writes_completions_and_a_manual() {
+    let out = bin()
+        .args([
+            "window",
+            "--from",
+            "E",
+            "--to",
+            "M",
+            "--depart",
+            "2033-01-01..2033-06-01",
+            "--arrive",
+            "2033-08-01..2034-01-01",
+            "--tof",
+            "100..300",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("cannot be used with"));
+    let out = bin().args(["completions", "bash"]).output().unwrap();
+    assert!(out.status.success());
+    assert!(String::from_utf8_lossy(&out.stdout).contains("tourwright"));
+    let out = bin().args(["manual"]).output().unwrap();
+    assert!(out.status.success());
+    let man = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        man.starts_with(".ie") || man.contains(".TH"),
+        "{}",
+        &man[..200.min(man.len())]
+    );
+    let dir = tempfile::tempdir().unwrap();
+    let out = bin()
+        .args(["manual", "--out"])
+        .arg(dir.path())
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    assert!(dir.path().join("tourwright-optimize.1").exists());
+}
+
+#[test]
+fn a_leg_shorter_than_an_hour_is_refused_with_its_field() {
+    // Two stops under a second apart, written in different time scales (TDB − UTC is about
+    // 69.2 s in 2031: 37 s of leap seconds and 32.184 s; IERS, common practice).
+    let dir = tempfile::tempdir().unwrap();
+    let f = dir.path().join("zero.tour.ron");
+    std::fs::write(
+        &f,
+        r#"(format: "tourwright-design", version: 1, name: "zero",
+            stops: [(body: "Earth", epoch: "2031-06-01T00:00:00.000 UTC"),
+                    (body: "Mars", epoch: "2031-06-01T00:01:10.000 TDB")])"#,
+    )
+    .unwrap();
+    let out = bin().arg("eval").arg(&f).output().unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let e = String::from_utf8(out.stderr).unwrap();
+    assert!(
+        e.contains("stops[1].epoch") && e.contains("at least an hour"),
+        "{e}"
+    );
+}
+
+#[test]
+fn a_parse_error_points_at_the_bad_token() {
+    // A field name mistyped at the start of a line, after a complete one: the message names
+    // that line and column, not the end of the line before.
+    let dir = tempfile::tempdir().unwrap();
+    let f = dir.path().join("bad.tour.ron");
+    let text = std::fs::read_to_string(sample("tern-saturn-ejs.tour.ron"))
+        .unwrap()
+        .replace("        min_dla_deg: None,", "        min_dla_deg: Nnoe,");
+    std::fs::write(&f, &text).unwrap();
+    let line = text.lines().position(|l| l.contains("Nnoe")).unwrap() + 1;
+    let out = bin().arg("eval").arg(&f).output().unwrap();
+    let e = String::from_utf8(out.stderr).unwrap();
+    assert!(
+        e.contains(&format!("bad.tour.ron:{line}:")),
+        "{e} (line {line})"
+    );
+    // A huge token is not echoed whole.
+    let big = text.replace("Nnoe", &"N".repeat(40_000));
+    std::fs::write(&f, big).unwrap();
+    let out = bin().arg("eval").arg(&f).output().unwrap();
+    assert!(out.stderr.len() < 500, "{} bytes", out.stderr.len());
 }

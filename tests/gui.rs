@@ -799,7 +799,7 @@ fn tisserand_graph_shows_contours_and_the_design() {
     );
     assert_eq!(
         std::fs::read_to_string(&csv).unwrap(),
-        tourwright::astro::tisserand::contours_csv(&shown)
+        tourwright::mission::export::tisserand_csv(&shown, &[])
     );
 }
 

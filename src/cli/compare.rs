@@ -1,57 +1,94 @@
 //! `tourwright compare FILE`: the tour against the best direct transfer in the launch period.
 
 use std::fmt::Write as _;
-use std::path::Path;
+use std::path::PathBuf;
 
-use serde_json::json;
-use tourwright_mission::report;
+use tourwright_mission::report::{self, EvalReport};
 use tourwright_search::Progress;
 use tourwright_search::direct::{self, DirectComparison, DirectOptions};
 
-use tourwright_mission::design::EphemerisChoice;
+use super::progress::{interrupted, watch};
+use super::{
+    CliError, CliResult, EXIT_INTERRUPTED, EphemerisArg, ObjectiveArg, load_with, out, out_json,
+};
 
-use super::{CliResult, ObjectiveArg, load_with};
+/// The arguments of `compare`.
+#[derive(clap::Args, Debug)]
+pub struct Args {
+    /// Design file (- for standard input).
+    pub file: PathBuf,
+    #[command(flatten)]
+    pub eph: EphemerisArg,
+    /// Ranking measure (default: mass when the design has a launch vehicle, else dv).
+    #[arg(long, value_enum)]
+    pub measure: Option<ObjectiveArg>,
+    /// Half-width of the launch period around the tour's launch, days.
+    #[arg(long, default_value_t = 365.25)]
+    pub window_days: f64,
+    /// Machine-readable JSON instead of text.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// The Hohmann figures of `compare --json`.
+#[derive(serde::Serialize)]
+struct HohmannReport {
+    vinf_depart_km_s: f64,
+    vinf_arrive_km_s: f64,
+    tof_days: f64,
+}
+
+/// `compare --json`.
+#[derive(serde::Serialize)]
+struct CompareReport {
+    measure: &'static str,
+    tour: EvalReport,
+    direct: EvalReport,
+    hohmann: HohmannReport,
+    summary: String,
+    direct_breaks_launch_limits: Option<String>,
+}
 
 /// Run `compare`.
-pub fn run(
-    file: &Path,
-    ephemeris: Option<EphemerisChoice>,
-    measure: Option<ObjectiveArg>,
-    window_days: f64,
-    json: bool,
-) -> CliResult {
-    let d = load_with(file, ephemeris)?;
+pub fn run(a: Args) -> CliResult {
+    let d = load_with(&a.file, &a.eph)?;
     let mut o = DirectOptions::for_design(&d);
-    if !(window_days.is_finite() && window_days > 0.0 && window_days <= 3650.0) {
+    if !(a.window_days.is_finite() && a.window_days > 0.0 && a.window_days <= 3650.0) {
         return Err("--window-days must be between 0 and 3650".into());
     }
-    o.window_days = window_days;
-    if let Some(m) = measure {
+    o.window_days = a.window_days;
+    if let Some(m) = a.measure {
         o.measure = m.into();
     }
     if o.measure.needs_vehicle() && d.launch_vehicle.is_none() {
         return Err("--measure mass needs a launch vehicle in the design".into());
     }
-    let c = direct::compare(&d, &o, &Progress::new())
-        .ok_or("no direct transfer found in the launch period")?;
-    if json {
-        let v = json!({
-            "measure": c.measure.label(),
-            "tour": report::to_json(&c.tour, &c.tour_eval),
-            "direct": report::to_json(&c.direct_tour, &c.direct_eval),
-            "hohmann": {
-                "vinf_depart_km_s": c.hohmann.vinf_depart,
-                "vinf_arrive_km_s": c.hohmann.vinf_arrive,
-                "tof_days": c.hohmann.tof_days,
-            },
-            "summary": c.summary(),
-            "direct_breaks_launch_limits": c.limits_note(),
-        });
-        super::out(&serde_json::to_string_pretty(&v).map_err(|e| e.to_string())?);
-    } else {
-        super::out(&compare_text(&c));
+    let p = Progress::new();
+    let w = watch(&p, "direct transfers");
+    let c = direct::compare(&d, &o, &p);
+    drop(w);
+    if interrupted() {
+        out("interrupted: the direct-transfer search was stopped");
+        return Err(CliError::status(EXIT_INTERRUPTED));
     }
-    Ok(())
+    let c = c.ok_or("no direct transfer found in the launch period")?;
+    if a.json {
+        out_json(&CompareReport {
+            measure: c.measure.label(),
+            tour: report::eval_report(&c.tour, &c.tour_eval),
+            direct: report::eval_report(&c.direct_tour, &c.direct_eval),
+            hohmann: HohmannReport {
+                vinf_depart_km_s: c.hohmann.vinf_depart,
+                vinf_arrive_km_s: c.hohmann.vinf_arrive,
+                tof_days: c.hohmann.tof_days,
+            },
+            summary: c.summary(),
+            direct_breaks_launch_limits: c.limits_note(),
+        })
+    } else {
+        out(&compare_text(&c));
+        Ok(())
+    }
 }
 
 /// The direct-vs-assist comparison as text.

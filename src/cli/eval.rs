@@ -1,25 +1,34 @@
 //! `tourwright eval FILE [--json]`: the event table, launch and arrival, the ledger, warnings.
 
-use std::path::Path;
+use std::path::PathBuf;
 
 use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate};
 use tourwright_mission::report;
 
-use tourwright_mission::design::EphemerisChoice;
+use super::{CliResult, EphemerisArg, load_with, out, out_json, prepare};
 
-use super::{CliResult, load_with, prepare};
+/// The arguments of `eval`.
+#[derive(clap::Args, Debug)]
+pub struct Args {
+    /// Design file (- for standard input).
+    pub file: PathBuf,
+    #[command(flatten)]
+    pub eph: EphemerisArg,
+    /// Machine-readable JSON instead of text.
+    #[arg(long)]
+    pub json: bool,
+}
 
 /// Run `eval`.
-pub fn run(file: &Path, ephemeris: Option<EphemerisChoice>, json: bool) -> CliResult {
-    let d = load_with(file, ephemeris)?;
-    let tour = prepare(file, &d)?;
+pub fn run(a: Args) -> CliResult {
+    let d = load_with(&a.file, &a.eph)?;
+    let tour = prepare(&a.file, &d)?;
     let mut e = Evaluation::default();
     evaluate(&tour, &EvalOptions::default(), &mut e);
-    if json {
-        let v = report::to_json(&tour, &e);
-        super::out(&serde_json::to_string_pretty(&v).map_err(|e| e.to_string())?);
+    if a.json {
+        out_json(&report::eval_report(&tour, &e))
     } else {
-        super::out(&report::to_text(&tour, &e));
+        out(&report::to_text(&tour, &e));
+        Ok(())
     }
-    Ok(())
 }

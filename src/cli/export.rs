@@ -1,42 +1,71 @@
-//! `tourwright export FILE --csv/--ledger/--samples/--oem`: tables and the trajectory as files.
+//! `tourwright export FILE --csv/--ledger/--samples/--oem`: tables and the trajectory as files
+//! (`-` for standard output). An export never replaces its input or any file holding a design.
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 
 use tourwright_astro::time::Epoch;
 use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate};
 use tourwright_mission::export;
 
-use super::{CliResult, load, prepare, write};
+use super::{
+    CliResult, EphemerisArg, Writes, check_output, claim_stdout, load_with, prepare, write,
+};
+
+/// The arguments of `export`.
+#[derive(clap::Args, Debug)]
+#[command(group(clap::ArgGroup::new("what").required(true).multiple(true)
+    .args(["csv", "ledger", "samples", "oem"])))]
+pub struct Args {
+    /// Design file (- for standard input).
+    pub file: PathBuf,
+    #[command(flatten)]
+    pub eph: EphemerisArg,
+    /// Event table as CSV (- for standard output).
+    #[arg(long)]
+    pub csv: Option<PathBuf>,
+    /// Ledger as CSV.
+    #[arg(long)]
+    pub ledger: Option<PathBuf>,
+    /// Trajectory samples as CSV.
+    #[arg(long)]
+    pub samples: Option<PathBuf>,
+    /// Trajectory as a CCSDS OEM (KVN).
+    #[arg(long)]
+    pub oem: Option<PathBuf>,
+}
 
 /// Run `export`.
-pub fn run(
-    file: &Path,
-    csv: Option<PathBuf>,
-    ledger: Option<PathBuf>,
-    samples: Option<PathBuf>,
-    oem: Option<PathBuf>,
-) -> CliResult {
-    if csv.is_none() && ledger.is_none() && samples.is_none() && oem.is_none() {
-        return Err("export needs at least one of --csv, --ledger, --samples, --oem".into());
+pub fn run(a: Args) -> CliResult {
+    let outputs = [
+        (a.csv.as_deref(), "--csv"),
+        (a.ledger.as_deref(), "--ledger"),
+        (a.samples.as_deref(), "--samples"),
+        (a.oem.as_deref(), "--oem"),
+    ];
+    claim_stdout(&outputs.map(|o| o.0))?;
+    for (p, flag) in outputs {
+        if let Some(p) = p {
+            check_output(p, &[&a.file], Writes::Data, flag)?;
+        }
     }
-    let d = load(file)?;
-    let tour = prepare(file, &d)?;
+    let d = load_with(&a.file, &a.eph)?;
+    let tour = prepare(&a.file, &d)?;
     let mut e = Evaluation::default();
     evaluate(&tour, &EvalOptions::default(), &mut e);
-    if let Some(p) = csv {
-        write(&p, &export::events_csv(&tour, &e))?;
+    if a.oem.is_some() && !e.complete {
+        return Err("the design has legs with no solution; no trajectory to export".into());
     }
-    if let Some(p) = ledger {
-        write(&p, &export::ledger_csv(&tour, &e))?;
+    if let Some(p) = &a.csv {
+        write(p, &export::events_csv(&tour, &e))?;
     }
-    if let Some(p) = samples {
-        write(&p, &export::samples_csv(&e))?;
+    if let Some(p) = &a.ledger {
+        write(p, &export::ledger_csv(&tour, &e))?;
     }
-    if let Some(p) = oem {
-        if !e.complete {
-            return Err("the design has legs with no solution; nothing to export".into());
-        }
-        write(&p, &export::oem(&tour, &e, Epoch::now()))?;
+    if let Some(p) = &a.samples {
+        write(p, &export::samples_csv(&e))?;
+    }
+    if let Some(p) = &a.oem {
+        write(p, &export::oem(&tour, &e, Epoch::now()))?;
     }
     Ok(())
 }

@@ -1,7 +1,12 @@
 //! The command line: the same engine for scripts and batch work. This module is the argument
-//! schema and the helpers every subcommand shares; each subcommand has a module of its own. Every
-//! command prints tables or writes files; bad input ends with a one-line reason on stderr and a
-//! non-zero exit status.
+//! schema's top and the helpers every subcommand shares; each subcommand has a module of its own
+//! with its clap `Args` struct (each argument declared once, there). Conventions: every output
+//! path accepts `-` for standard output, and the commands that read one design accept `-` for
+//! standard input; `--json` prints typed JSON on every command that prints a result; no command
+//! writes over one of its inputs unless asked (`--in-place`), and no export replaces a file that
+//! holds a design; long work shows progress on a terminal (`--quiet` silences it) and Ctrl-C
+//! stops it, keeping what was found (exit status 130). Bad input ends with a one-line reason on
+//! stderr and a non-zero exit status.
 
 mod compare;
 mod dsm;
@@ -9,13 +14,17 @@ mod eval;
 mod explore;
 mod export;
 mod fidelity;
+mod manual;
 mod optimize;
+mod progress;
 mod retarget;
 mod state;
 mod tisserand;
 mod window;
 
+use std::io::Read as _;
 use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicBool, Ordering};
 
 use clap::{Parser, Subcommand, ValueEnum};
 
@@ -32,6 +41,62 @@ pub struct Cli {
     /// What to do; with none, the workbench opens.
     #[command(subcommand)]
     pub command: Option<Command>,
+    /// No progress bars on standard error.
+    #[arg(long, short, global = true)]
+    pub quiet: bool,
+}
+
+/// Subcommands.
+#[derive(Subcommand, Debug)]
+pub enum Command {
+    /// Open the workbench (optionally on a design file).
+    Gui(GuiArgs),
+    /// Evaluate a design: event table and ledger.
+    Eval(eval::Args),
+    /// Heliocentric ecliptic J2000 states of a planet from an ephemeris source (km, km/s).
+    State(state::Args),
+    /// Tisserand graph: v∞ contours of planets on (periapsis, apoapsis) radius, and a design's
+    /// arcs on them, as CSV.
+    Tisserand(tisserand::Args),
+    /// n-body check of a design: per encounter the miss, its B-plane components, the change in
+    /// v∞ and the departure correction that removes the miss.
+    Fidelity(fidelity::Args),
+    /// Compare the tour with the best direct transfer in the launch period.
+    Compare(compare::Args),
+    /// Export tables or the trajectory.
+    Export(export::Args),
+    /// Window map (porkchop grid) between two bodies or for one leg of a design.
+    Window(window::Args),
+    /// Adjust a shaped swing-by so that its ballistic leg meets the next body again.
+    Retarget(retarget::Args),
+    /// Add, move or remove a leg's deep-space manoeuvre (DSM).
+    Dsm(dsm::Args),
+    /// Optimise a design's dates within its search bounds.
+    Optimize(optimize::Args),
+    /// Explore planet sequences and rank them (or merge the shards of a survey).
+    Explore(explore::Args),
+    /// Print a shell completion script (bash, zsh, fish, elvish, powershell).
+    Completions(manual::CompletionArgs),
+    /// Write the manual pages (roff), one per command.
+    Manual(manual::ManualArgs),
+}
+
+/// The arguments of `gui`.
+#[derive(clap::Args, Debug)]
+pub struct GuiArgs {
+    /// Design file to open.
+    pub file: Option<PathBuf>,
+}
+
+/// The ephemeris choice every command that evaluates takes.
+#[derive(clap::Args, Debug, Clone, Default)]
+pub struct EphemerisArg {
+    /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark (the
+    /// MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as de421.bsp) or
+    /// kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's (mean-elements
+    /// when there is no design).
+    #[arg(long, value_parser = EphemerisChoice::parse)]
+    pub ephemeris: Option<EphemerisChoice>,
 }
 
 /// Multi-revolution branches.
@@ -70,286 +135,6 @@ impl From<ObjectiveArg> for Objective {
     }
 }
 
-/// Subcommands.
-#[derive(Subcommand, Debug)]
-pub enum Command {
-    /// Open the workbench (optionally on a design file).
-    Gui {
-        /// Design file to open.
-        file: Option<PathBuf>,
-    },
-    /// Evaluate a design: event table and ledger.
-    Eval {
-        /// Design file.
-        file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Machine-readable JSON instead of text.
-        #[arg(long)]
-        json: bool,
-    },
-    /// Heliocentric ecliptic J2000 states of a planet from an ephemeris source (km, km/s).
-    State {
-        /// Planet (name or letter).
-        body: String,
-        /// Epoch, or START..END with --step.
-        #[arg(long)]
-        at: String,
-        /// Step between rows for a range, days.
-        #[arg(long)]
-        step: Option<f64>,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: mean-elements.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Write CSV here instead of printing.
-        #[arg(long)]
-        csv: Option<PathBuf>,
-    },
-    /// Tisserand graph: v∞ contours of planets on (periapsis, apoapsis) radius, and a design's
-    /// arcs on them, as CSV.
-    Tisserand {
-        /// Planets, comma-separated letters or names (V,E,J).
-        #[arg(long)]
-        bodies: String,
-        /// v∞ levels, km/s, comma-separated (3,5,7,9).
-        #[arg(long)]
-        vinf: String,
-        /// A design whose arcs are added as rows ("design leg K").
-        #[arg(long)]
-        design: Option<PathBuf>,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Write CSV here instead of printing.
-        #[arg(long)]
-        csv: Option<PathBuf>,
-    },
-    /// n-body check of a design: per encounter the miss, its B-plane components, the change in
-    /// v∞ and the departure correction that removes the miss.
-    Fidelity {
-        /// Design file.
-        file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Machine-readable JSON instead of text.
-        #[arg(long)]
-        json: bool,
-    },
-    /// Compare the tour with the best direct transfer in the launch period.
-    Compare {
-        /// Design file.
-        file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Ranking measure (default: mass when the design has a launch vehicle, else dv).
-        #[arg(long, value_enum)]
-        measure: Option<ObjectiveArg>,
-        /// Half-width of the launch period around the tour's launch, days.
-        #[arg(long, default_value_t = 365.25)]
-        window_days: f64,
-        /// Machine-readable JSON instead of text.
-        #[arg(long)]
-        json: bool,
-    },
-    /// Export tables or the trajectory.
-    Export {
-        /// Design file.
-        file: PathBuf,
-        /// Event table as CSV.
-        #[arg(long)]
-        csv: Option<PathBuf>,
-        /// Ledger as CSV.
-        #[arg(long)]
-        ledger: Option<PathBuf>,
-        /// Trajectory samples as CSV.
-        #[arg(long)]
-        samples: Option<PathBuf>,
-        /// Trajectory as a CCSDS OEM (KVN).
-        #[arg(long)]
-        oem: Option<PathBuf>,
-    },
-    /// Window map (porkchop grid) between two bodies or for one leg of a design.
-    Window {
-        /// Departure body (or take it from --design and --leg).
-        #[arg(long)]
-        from: Option<String>,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Arrival body.
-        #[arg(long)]
-        to: Option<String>,
-        /// Design whose leg to map (its dates centre the map unless given).
-        #[arg(long)]
-        design: Option<PathBuf>,
-        /// Leg number (1-based) of --design.
-        #[arg(long, default_value_t = 1)]
-        leg: usize,
-        /// Departure dates START..END.
-        #[arg(long)]
-        depart: Option<String>,
-        /// Arrival dates START..END.
-        #[arg(long)]
-        arrive: Option<String>,
-        /// Time of flight range MIN..MAX in days (instead of --arrive).
-        #[arg(long)]
-        tof: Option<String>,
-        /// Cells per axis.
-        #[arg(long, default_value_t = 200)]
-        steps: usize,
-        /// Complete revolutions of the arcs.
-        #[arg(long, default_value_t = 0)]
-        revs: u32,
-        /// Multi-revolution branch (left: smaller x, right: larger x).
-        #[arg(long, value_enum, default_value = "left")]
-        branch: BranchArg,
-        /// Write the grid as CSV.
-        #[arg(long)]
-        csv: Option<PathBuf>,
-    },
-    /// Adjust a shaped swing-by so that its ballistic leg meets the next body again.
-    Retarget {
-        /// Design file.
-        file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Stop number (1-based) of the shaped swing-by.
-        #[arg(long)]
-        stop: usize,
-        /// Also move the next stop's epoch (and later ones by the same shift).
-        #[arg(long)]
-        move_epoch: bool,
-        /// Where to write the adjusted design.
-        #[arg(long)]
-        out: PathBuf,
-    },
-    /// Add, move or remove a leg's deep-space manoeuvre (DSM).
-    Dsm {
-        /// Design file.
-        file: PathBuf,
-        /// Leg number (1-based: leg 1 runs from stop 1 to stop 2).
-        #[arg(long)]
-        leg: usize,
-        /// Place the manoeuvre at this fraction of the leg's time of flight (0 < F < 1).
-        #[arg(long, conflicts_with_all = ["date", "remove"])]
-        at: Option<f64>,
-        /// Place the manoeuvre on this date (inside the leg), e.g. 2031-05-01 or
-        /// 2031-05-01T12:00:00 TDB.
-        #[arg(long, conflicts_with = "remove")]
-        date: Option<String>,
-        /// Remove the leg's manoeuvre.
-        #[arg(long)]
-        remove: bool,
-        /// Where to write the changed design.
-        #[arg(long)]
-        out: PathBuf,
-    },
-    /// Optimise a design's dates within its search bounds.
-    Optimize {
-        /// Design file.
-        file: PathBuf,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel such as
-        /// de421.bsp) or kernel (the default kernel, TOURWRIGHT_KERNEL); default: the design's.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Seed (the same seed and budget give the same answer).
-        #[arg(long, default_value_t = 1)]
-        seed: u64,
-        /// Wall-clock limit, seconds (optional; results then depend on machine speed).
-        #[arg(long)]
-        time: Option<f64>,
-        /// Evaluation budget (default 400 000; with --time and no --evals, the time alone).
-        #[arg(long)]
-        evals: Option<u64>,
-        /// Objective (default: the design's).
-        #[arg(long, value_enum)]
-        objective: Option<ObjectiveArg>,
-        /// Where to write the improved design (not the input file, unless --in-place).
-        #[arg(long)]
-        out: PathBuf,
-        /// Allow --out to name the input file and replace it.
-        #[arg(long)]
-        in_place: bool,
-        /// Also write the TOF trade-off front as CSV.
-        #[arg(long)]
-        front: Option<PathBuf>,
-    },
-    /// Explore planet sequences and rank them (or merge the shards of a survey).
-    Explore {
-        /// Launch body.
-        #[arg(long, required_unless_present = "merge")]
-        from: Option<String>,
-        /// Target body.
-        #[arg(long, required_unless_present = "merge")]
-        to: Option<String>,
-        /// Launch period START..END.
-        #[arg(long, required_unless_present = "merge")]
-        launch: Option<String>,
-        /// Bodies allowed for swing-bys, comma-separated letters or names (V,E,M,J).
-        #[arg(long, default_value = "V,E,M,J")]
-        via: String,
-        /// Largest number of swing-bys.
-        #[arg(long, default_value_t = 2)]
-        max_swingbys: usize,
-        /// Largest total TOF, years.
-        #[arg(long, default_value_t = 8.0)]
-        max_tof_years: f64,
-        /// Objective.
-        #[arg(long, value_enum, default_value = "dv")]
-        objective: ObjectiveArg,
-        /// Largest launch C3, km²/s².
-        #[arg(long)]
-        max_c3: Option<f64>,
-        /// Evaluations per sequence.
-        #[arg(long, default_value_t = tourwright_search::explore::DEFAULT_EVALS_PER_SEQUENCE)]
-        evals: u64,
-        /// Seed.
-        #[arg(long, default_value_t = 1)]
-        seed: u64,
-        /// Ephemeris model: mean-elements (JPL approximate elements 1800-2050), mga-benchmark
-        /// (the MGA benchmark set's analytic model), kernel:PATH (a JPL SPK kernel) or kernel
-        /// (TOURWRIGHT_KERNEL); default: mean-elements.
-        #[arg(long, value_parser = EphemerisChoice::parse)]
-        ephemeris: Option<EphemerisChoice>,
-        /// Deep-space manoeuvres on explored legs (MGA-1DSM): none, resonant (legs that return
-        /// to the body they left, the default) or every.
-        #[arg(long, value_enum, default_value = "resonant")]
-        dsm: explore::DsmArg,
-        /// Explore only share K of N (1-based K), e.g. 3/16: for array jobs of a scheduler.
-        /// Writes JSON lines to --jsonl (or to standard output).
-        #[arg(long)]
-        shard: Option<String>,
-        /// Where a shard writes its JSON lines.
-        #[arg(long)]
-        jsonl: Option<PathBuf>,
-        /// Rank the union of shards: folders (or files) of JSON lines written by --shard.
-        #[arg(long, num_args = 1.., conflicts_with_all = ["from", "to", "launch", "shard"])]
-        merge: Vec<PathBuf>,
-        /// Folder for the ranked designs (one file per sequence).
-        #[arg(long)]
-        out: Option<PathBuf>,
-    },
-}
-
 /// A failure of a command: one line for stderr (empty when the command already said everything on
 /// standard output) and the exit status.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -357,12 +142,24 @@ pub struct CliError {
     /// The line for stderr.
     pub message: String,
     /// Exit status: 1 for bad input or a failure, 3 when a search found no design meeting every
-    /// limit.
+    /// limit, 130 when interrupted.
     pub status: i32,
 }
 
 /// Exit status of a search that found no design meeting every limit.
 pub const EXIT_NO_FEASIBLE: i32 = 3;
+/// Exit status after Ctrl-C (128 + SIGINT, the shells' convention).
+pub const EXIT_INTERRUPTED: i32 = 130;
+
+impl CliError {
+    /// An exit status with nothing more to say.
+    pub fn status(status: i32) -> Self {
+        CliError {
+            message: String::new(),
+            status,
+        }
+    }
+}
 
 impl From<String> for CliError {
     fn from(message: String) -> Self {
@@ -383,182 +180,140 @@ impl From<&str> for CliError {
 pub type CliResult = Result<(), CliError>;
 
 /// Run a parsed command line (not `gui`, which the binary handles).
-pub fn run(cmd: Command) -> CliResult {
+pub fn run(cmd: Command, quiet: bool) -> CliResult {
+    progress::set_quiet(quiet);
     match cmd {
-        Command::Gui { .. } => Err("the workbench is started by the binary".into()),
-        Command::Eval {
-            file,
-            ephemeris,
-            json,
-        } => eval::run(&file, ephemeris, json),
-        Command::Compare {
-            file,
-            ephemeris,
-            measure,
-            window_days,
-            json,
-        } => compare::run(&file, ephemeris, measure, window_days, json),
-        Command::Export {
-            file,
-            csv,
-            ledger,
-            samples,
-            oem,
-        } => export::run(&file, csv, ledger, samples, oem),
-        Command::Window {
-            from,
-            ephemeris,
-            to,
-            design,
-            leg,
-            depart,
-            arrive,
-            tof,
-            steps,
-            revs,
-            branch,
-            csv,
-        } => window::run(window::Args {
-            from,
-            ephemeris,
-            to,
-            design,
-            leg,
-            depart,
-            arrive,
-            tof,
-            steps,
-            revs,
-            branch,
-            csv,
-        }),
-        Command::State {
-            body,
-            at,
-            step,
-            ephemeris,
-            csv,
-        } => state::run(&body, &at, step, ephemeris, csv.as_deref()),
-        Command::Tisserand {
-            bodies,
-            vinf,
-            design,
-            ephemeris,
-            csv,
-        } => tisserand::run(&bodies, &vinf, design.as_deref(), ephemeris, csv.as_deref()),
-        Command::Fidelity {
-            file,
-            ephemeris,
-            json,
-        } => fidelity::run(&file, ephemeris, json),
-        Command::Retarget {
-            file,
-            ephemeris,
-            stop,
-            move_epoch,
-            out,
-        } => retarget::run(&file, ephemeris, stop, move_epoch, &out),
-        Command::Dsm {
-            file,
-            leg,
-            at,
-            date,
-            remove,
-            out,
-        } => dsm::run(&file, leg, at, date.as_deref(), remove, &out),
-        Command::Optimize {
-            file,
-            ephemeris,
-            seed,
-            time,
-            evals,
-            objective,
-            out,
-            in_place,
-            front,
-        } => optimize::run(
-            &file, ephemeris, seed, time, evals, objective, &out, in_place, front,
-        ),
-        Command::Explore {
-            from,
-            ephemeris,
-            to,
-            launch,
-            via,
-            max_swingbys,
-            max_tof_years,
-            objective,
-            max_c3,
-            evals,
-            seed,
-            out,
-            dsm,
-            shard,
-            jsonl,
-            merge,
-        } => explore::run(explore::Args {
-            from,
-            ephemeris,
-            to,
-            launch,
-            via,
-            max_swingbys,
-            max_tof_years,
-            objective,
-            max_c3,
-            evals,
-            seed,
-            shard,
-            dsm,
-            jsonl,
-            merge,
-            out,
-        }),
+        Command::Gui(_) => Err("the workbench is started by the binary".into()),
+        Command::Eval(a) => eval::run(a),
+        Command::State(a) => state::run(a),
+        Command::Tisserand(a) => tisserand::run(a),
+        Command::Fidelity(a) => fidelity::run(a),
+        Command::Compare(a) => compare::run(a),
+        Command::Export(a) => export::run(a),
+        Command::Window(a) => window::run(a),
+        Command::Retarget(a) => retarget::run(a),
+        Command::Dsm(a) => dsm::run(a),
+        Command::Optimize(a) => optimize::run(a),
+        Command::Explore(a) => explore::run(a),
+        Command::Completions(a) => manual::completions(a),
+        Command::Manual(a) => manual::manual(a),
     }
 }
 
-fn load(path: &Path) -> Result<MissionDesign, String> {
-    files::load(path).map_err(|e| e.to_string())
+/// True for the path `-`: standard input or output.
+pub fn is_dash(p: &Path) -> bool {
+    p.as_os_str() == "-"
 }
 
-/// Load a design and apply the command line's ephemeris choice (validated again under it).
-fn load_with(path: &Path, ephemeris: Option<EphemerisChoice>) -> Result<MissionDesign, String> {
-    let mut d = load(path)?;
-    if let Some(e) = ephemeris {
-        d.ephemeris = e;
+/// Standard output holds a command's data (an output path was `-`): its words go to stderr.
+static STDOUT_TAKEN: AtomicBool = AtomicBool::new(false);
+
+/// Claim standard output for data when any of `outputs` is `-`; refuse two outputs there.
+fn claim_stdout(outputs: &[Option<&Path>]) -> CliResult {
+    let n = outputs.iter().flatten().filter(|p| is_dash(p)).count();
+    if n > 1 {
+        return Err("only one output can go to standard output (-)".into());
+    }
+    STDOUT_TAKEN.store(n == 1, Ordering::Relaxed);
+    Ok(())
+}
+
+/// Print a line for the user: to standard output, or to standard error when standard output
+/// carries data. A closed pipe (`| head`) ends the program quietly instead of panicking.
+pub(crate) fn out(text: &str) {
+    use std::io::Write as _;
+    let text = text.trim_end_matches('\n');
+    if STDOUT_TAKEN.load(Ordering::Relaxed) {
+        let _ = writeln!(std::io::stderr().lock(), "{text}");
+        return;
+    }
+    let mut so = std::io::stdout().lock();
+    if writeln!(so, "{text}").is_err() {
+        std::process::exit(0);
+    }
+}
+
+/// Print JSON of a typed result.
+fn out_json<T: serde::Serialize>(v: &T) -> CliResult {
+    out(&serde_json::to_string_pretty(v).map_err(|e| e.to_string())?);
+    Ok(())
+}
+
+/// Read a design from a file, or from standard input for `-` (a relative kernel path is then
+/// relative to the working folder).
+fn read_design(path: &Path) -> Result<MissionDesign, CliError> {
+    if is_dash(path) {
+        let mut text = String::new();
+        std::io::stdin()
+            .take(files::MAX_FILE_BYTES + 1)
+            .read_to_string(&mut text)
+            .map_err(|e| format!("standard input: {e}"))?;
+        return files::from_str(&text, Path::new("<standard input>"))
+            .map_err(|e| e.to_string().into());
+    }
+    files::load(path).map_err(|e| e.to_string().into())
+}
+
+/// Read a design and apply the command line's ephemeris choice (validated again under it).
+fn load_with(path: &Path, ephemeris: &EphemerisArg) -> Result<MissionDesign, CliError> {
+    let mut d = read_design(path)?;
+    if let Some(e) = &ephemeris.ephemeris {
+        d.ephemeris = e.clone();
         files::validate(&d).map_err(|i| format!("{}: {i}", path.display()))?;
     }
     Ok(d)
 }
 
-fn prepare(path: &Path, d: &MissionDesign) -> Result<PreparedTour, String> {
-    PreparedTour::prepare(d).map_err(|e| format!("{}: {e}", path.display()))
-}
-
-/// Print a line to standard output; a closed pipe (`| head`) ends the program quietly instead of
-/// panicking.
-pub(crate) fn out(text: &str) {
-    use std::io::Write as _;
-    let mut so = std::io::stdout().lock();
-    if writeln!(so, "{}", text.trim_end_matches('\n')).is_err() {
-        std::process::exit(0);
-    }
+fn prepare(path: &Path, d: &MissionDesign) -> Result<PreparedTour, CliError> {
+    PreparedTour::prepare(d).map_err(|e| format!("{}: {e}", path.display()).into())
 }
 
 /// True when `a` and `b` name the same existing file (through links and relative paths).
 fn same_file(a: &Path, b: &Path) -> bool {
+    if is_dash(a) || is_dash(b) {
+        return false;
+    }
     match (std::fs::canonicalize(a), std::fs::canonicalize(b)) {
         (Ok(x), Ok(y)) => x == y,
         _ => false,
     }
 }
 
-/// Refuse to write `output` when it is the command's `input` (unless `allowed`): a command never
-/// writes over what it reads without being asked.
-fn refuse_overwrite(input: &Path, output: &Path, allowed: bool, flag: &str) -> CliResult {
-    if !allowed && same_file(input, output) {
+/// What an output path receives.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Writes {
+    /// A design (replacing an input only with `--in-place`).
+    Design {
+        /// `--in-place` was given.
+        in_place: bool,
+    },
+    /// Data (a table, a trajectory): never over an input, never over a design file.
+    Data,
+}
+
+/// Check that `output` (named by `flag`) may be written given the command's `inputs`.
+fn check_output(output: &Path, inputs: &[&Path], what: Writes, flag: &str) -> CliResult {
+    if is_dash(output) {
+        return Ok(());
+    }
+    for i in inputs {
+        if same_file(i, output) && what != (Writes::Design { in_place: true }) {
+            return Err(match what {
+                Writes::Design { .. } => format!(
+                    "{flag} {} is the input file; write elsewhere, or pass --in-place to replace it",
+                    output.display()
+                ),
+                Writes::Data => format!(
+                    "{flag} {} is an input file; an export never replaces its input",
+                    output.display()
+                ),
+            }
+            .into());
+        }
+    }
+    if what == Writes::Data && files::holds_design(output) {
         return Err(format!(
-            "{flag} {} is the input file; write elsewhere, or pass --in-place to replace it",
+            "{flag} {} holds a design; an export never replaces a design file",
             output.display()
         )
         .into());
@@ -566,22 +321,50 @@ fn refuse_overwrite(input: &Path, output: &Path, allowed: bool, flag: &str) -> C
     Ok(())
 }
 
+/// Write data to a path (`-`: standard output) after [`check_output`]: atomically, through
+/// symbolic links, never onto a special file.
 fn write(path: &Path, text: &str) -> CliResult {
-    std::fs::write(path, text).map_err(|e| format!("{}: {e}", path.display()).into())
+    if is_dash(path) {
+        use std::io::Write as _;
+        let mut so = std::io::stdout().lock();
+        if so
+            .write_all(text.as_bytes())
+            .and_then(|_| so.flush())
+            .is_err()
+        {
+            std::process::exit(0);
+        }
+        return Ok(());
+    }
+    files::write_atomic(path, text.as_bytes()).map_err(|e| e.to_string().into())
 }
 
-fn range(text: &str, what: &str) -> Result<(String, String), String> {
+/// Save a design to a path (`-`: standard output).
+fn save_design(d: &MissionDesign, path: &Path) -> CliResult {
+    if is_dash(path) {
+        files::validate(d).map_err(|i| format!("-: {i}"))?;
+        return write(path, &files::to_string(d));
+    }
+    files::save(d, path).map_err(|e| e.to_string().into())
+}
+
+fn range(text: &str, what: &str) -> Result<(String, String), CliError> {
     text.split_once("..")
         .map(|(a, b)| (a.trim().to_string(), b.trim().to_string()))
-        .ok_or_else(|| format!("--{what} wants START..END, got '{text}'"))
+        .ok_or_else(|| format!("--{what} wants START..END, got '{text}'").into())
 }
 
-fn epochs(text: &str, what: &str) -> Result<(Epoch, Epoch), String> {
+fn epochs(text: &str, what: &str) -> Result<(Epoch, Epoch), CliError> {
     let (a, b) = range(text, what)?;
     let a = Epoch::parse(&a).map_err(|e| format!("--{what}: {e}"))?;
     let b = Epoch::parse(&b).map_err(|e| format!("--{what}: {e}"))?;
     if b.tdb().0 <= a.tdb().0 {
-        return Err(format!("--{what}: the end must be after the start"));
+        return Err(format!("--{what}: the end must be after the start").into());
     }
     Ok((a, b))
+}
+
+/// The clap command, for completions and manual pages.
+pub fn command() -> clap::Command {
+    <Cli as clap::CommandFactory>::command()
 }

@@ -1,29 +1,54 @@
-//! `tourwright tisserand --bodies V,E,J --vinf 3,5,7,9 [--design FILE] [--csv OUT]`: the
+//! `tourwright tisserand --bodies V,E,J --vinf 3,5,7,9 [--design FILE] [--csv OUT | --json]`: the
 //! Tisserand graph's v∞ contours (and a design's arcs on it), as the workbench draws them.
 
-use std::path::Path;
+use std::path::PathBuf;
 
 use tourwright_astro::bodies::Planet;
-use tourwright_astro::tisserand;
-use tourwright_mission::design::EphemerisChoice;
-use tourwright_mission::evaluate::{EvalOptions, evaluate, legs};
-use tourwright_mission::{MissionDesign, PreparedTour};
+use tourwright_astro::tisserand::{self, Contour};
+use tourwright_mission::evaluate::legs::{self, ArcOrbit};
+use tourwright_mission::evaluate::{EvalOptions, evaluate};
+use tourwright_mission::{MissionDesign, PreparedTour, export};
 
-use super::{CliResult, load_with, out, write};
+use super::{CliResult, EphemerisArg, claim_stdout, is_dash, load_with, out, out_json, write};
 
 /// Points per contour (pump angle 0-180°), the same as the workbench.
 pub const POINTS: usize = 181;
 
+/// The arguments of `tisserand`.
+#[derive(clap::Args, Debug)]
+pub struct Args {
+    /// Planets, comma-separated letters or names (V,E,J).
+    #[arg(long)]
+    pub bodies: String,
+    /// v∞ levels, km/s, comma-separated (3,5,7,9).
+    #[arg(long)]
+    pub vinf: String,
+    /// A design whose arcs are added as rows ("design leg K"); - for standard input.
+    #[arg(long)]
+    pub design: Option<PathBuf>,
+    #[command(flatten)]
+    pub eph: EphemerisArg,
+    /// Write CSV here (- for standard output); without it the CSV is printed.
+    #[arg(long, conflicts_with = "json")]
+    pub csv: Option<PathBuf>,
+    /// Machine-readable JSON instead of CSV.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// `tisserand --json`.
+#[derive(serde::Serialize)]
+struct TisserandReport<'a> {
+    ephemeris: String,
+    contours: &'a [Contour],
+    design_arcs: &'a [ArcOrbit],
+}
+
 /// Run `tisserand`.
-pub fn run(
-    bodies: &str,
-    vinf: &str,
-    design: Option<&Path>,
-    ephemeris: Option<EphemerisChoice>,
-    csv: Option<&Path>,
-) -> CliResult {
+pub fn run(a: Args) -> CliResult {
+    claim_stdout(&[a.csv.as_deref()])?;
     let mut planets = Vec::new();
-    for b in bodies.split(',').filter(|b| !b.trim().is_empty()) {
+    for b in a.bodies.split(',').filter(|b| !b.trim().is_empty()) {
         planets.push(
             Planet::from_name(b.trim())
                 .ok_or_else(|| format!("--bodies: unknown planet '{}'", b.trim()))?,
@@ -33,7 +58,7 @@ pub fn run(
         return Err("--bodies: name at least one planet, e.g. V,E,J".into());
     }
     let mut levels = Vec::new();
-    for v in vinf.split(',').filter(|v| !v.trim().is_empty()) {
+    for v in a.vinf.split(',').filter(|v| !v.trim().is_empty()) {
         let x: f64 = v
             .trim()
             .parse()
@@ -46,11 +71,11 @@ pub fn run(
     if levels.is_empty() {
         return Err("--vinf: give at least one level in km/s, e.g. 3,5,7".into());
     }
-    let d = match design {
-        Some(p) => load_with(p, ephemeris)?,
+    let d = match &a.design {
+        Some(p) => load_with(p, &a.eph)?,
         None => {
             let mut d = MissionDesign::new_blank();
-            d.ephemeris = ephemeris.unwrap_or_default();
+            d.ephemeris = a.eph.ephemeris.clone().unwrap_or_default();
             d
         }
     };
@@ -59,25 +84,37 @@ pub fn run(
         .model()
         .clone();
     let contours = tisserand::contours_for(&model, &planets, &levels, POINTS);
-    let mut text = tisserand::contours_csv(&contours);
     let mut arcs = Vec::new();
-    if let Some(p) = design {
+    if let Some(p) = &a.design {
         let tour = PreparedTour::prepare(&d).map_err(|e| format!("{}: {e}", p.display()))?;
         let mut e = tourwright_mission::evaluate::Evaluation::default();
         evaluate(&tour, &EvalOptions::default(), &mut e);
         arcs = legs::arc_orbits(&tour, &e);
-        for a in &arcs {
-            text.push_str(&format!(
-                "design leg {}{},,,{:.9},{:.9},\n",
-                a.leg + 1,
-                if a.piece == 1 { " after DSM" } else { "" },
-                a.rp_au,
-                a.ra_au
-            ));
-        }
     }
-    match csv {
-        Some(path) => {
+    if a.json {
+        return out_json(&TisserandReport {
+            ephemeris: model.name(),
+            contours: &contours,
+            design_arcs: &arcs,
+        });
+    }
+    let extra: Vec<(String, f64, f64)> = arcs
+        .iter()
+        .map(|a| {
+            (
+                format!(
+                    "design leg {}{}",
+                    a.leg + 1,
+                    if a.piece == 1 { " after DSM" } else { "" }
+                ),
+                a.rp_au,
+                a.ra_au,
+            )
+        })
+        .collect();
+    let text = export::tisserand_csv(&contours, &extra);
+    match &a.csv {
+        Some(path) if !is_dash(path) => {
             write(path, &text)?;
             out(&format!(
                 "{} contours ({} points) and {} design arcs written to {}",
@@ -87,7 +124,7 @@ pub fn run(
                 path.display()
             ));
         }
-        None => out(&text),
+        _ => write(std::path::Path::new("-"), &text)?,
     }
     Ok(())
 }

@@ -62,16 +62,12 @@ fn new_id() -> String {
     format!("doc-{}-{t}-{n}", std::process::id())
 }
 
-/// Write `text` to `path` atomically: a temporary file beside it, flushed, renamed over it. An
-/// interrupted write leaves the previous file as it was.
+/// Write `text` to `path` atomically (the design files' own writer: a uniquely named temporary
+/// file beside it, flushed, renamed over it). An interrupted write leaves the previous file as
+/// it was.
 pub fn write_atomic(path: &Path, text: &str) -> std::io::Result<()> {
-    use std::io::Write as _;
-    let tmp = path.with_extension("tmp");
-    let mut f = std::fs::File::create(&tmp)?;
-    f.write_all(text.as_bytes())?;
-    f.sync_all()?;
-    drop(f);
-    std::fs::rename(&tmp, path)
+    tourwright_mission::files::write_atomic(path, text.as_bytes())
+        .map_err(|e| std::io::Error::other(e.to_string()))
 }
 
 fn write_snapshot(s: &Snapshot) -> std::io::Result<()> {

@@ -168,9 +168,16 @@ pub fn export_to(app: &mut TourwrightApp, purpose: PathPurpose, p: &Path) {
             return;
         }
     };
-    match std::fs::write(p, text) {
+    if tourwright_mission::files::holds_design(p) {
+        app.dialogs.error = Some(format!(
+            "{} holds a design; an export never replaces a design file. Choose another name.",
+            p.display()
+        ));
+        return;
+    }
+    match tourwright_mission::files::write_atomic(p, text.as_bytes()) {
         Ok(()) => app.status = Some((format!("wrote {}", p.display()), false)),
-        Err(e) => app.dialogs.error = Some(format!("{}: {e}", p.display())),
+        Err(e) => app.dialogs.error = Some(e.to_string()),
     }
 }
 

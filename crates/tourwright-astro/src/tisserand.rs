@@ -25,7 +25,7 @@ pub fn vinf_of(t: f64, v_p: f64) -> Option<f64> {
 }
 
 /// One point of a contour.
-#[derive(Clone, Copy, Debug, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq, serde::Serialize)]
 pub struct ContourPoint {
     /// Pump angle between v∞ and the planet's velocity, degrees (0: v∞ along the velocity).
     pub pump_deg: f64,
@@ -38,7 +38,7 @@ pub struct ContourPoint {
 }
 
 /// A v∞ contour of one planet.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
 pub struct Contour {
     /// The planet's name.
     pub body: String,
@@ -167,18 +167,4 @@ pub fn contours_for(
         }
     }
     out
-}
-
-/// Contours as CSV: one row per point (body, v∞, pump angle, r_p, r_a, period).
-pub fn contours_csv(contours: &[Contour]) -> String {
-    let mut s = String::from("body,vinf_km_s,pump_deg,rp_au,ra_au,period_days\n");
-    for c in contours {
-        for p in &c.points {
-            s.push_str(&format!(
-                "{},{},{:.6},{:.9},{:.9},{:.6}\n",
-                c.body, c.vinf_km_s, p.pump_deg, p.rp_au, p.ra_au, p.period_days
-            ));
-        }
-    }
-    s
 }

@@ -43,29 +43,81 @@ fn pieces(e: &Evaluation) -> Vec<(usize, usize, std::ops::Range<usize>)> {
 /// pieces (column `piece`): the coast, whose last point is the manoeuvre with the velocity
 /// before it, and the arc, whose first point repeats it with the velocity after.
 pub fn samples_csv(e: &Evaluation) -> String {
-    let mut out = String::from(
-        "leg,piece,epoch_utc,tdb_days_since_j2000,x_km,y_km,z_km,vx_km_s,vy_km_s,vz_km_s\n",
-    );
+    let mut rows = Vec::with_capacity(e.samples.len());
     for (k, piece, range) in pieces(e) {
         for s in &e.samples[range] {
             let (r, v) = (s.state.r, s.state.v);
-            let _ = writeln!(
-                out,
-                "{},{},{},{:.9},{:.3},{:.3},{:.3},{:.9},{:.9},{:.9}",
-                k + 1,
-                piece,
+            rows.push(vec![
+                (k + 1).to_string(),
+                piece.to_string(),
                 s.t.to_iso_utc(),
-                s.t.days(),
-                r.x,
-                r.y,
-                r.z,
-                v.x,
-                v.y,
-                v.z
-            );
+                format!("{:.9}", s.t.days()),
+                format!("{:.3}", r.x),
+                format!("{:.3}", r.y),
+                format!("{:.3}", r.z),
+                format!("{:.9}", v.x),
+                format!("{:.9}", v.y),
+                format!("{:.9}", v.z),
+            ]);
         }
     }
-    out
+    report::csv_text(
+        &[
+            "leg",
+            "piece",
+            "epoch_utc",
+            "tdb_days_since_j2000",
+            "x_km",
+            "y_km",
+            "z_km",
+            "vx_km_s",
+            "vy_km_s",
+            "vz_km_s",
+        ],
+        rows,
+    )
+}
+
+/// Tisserand-graph contours (and extra rows such as a design's arcs) as CSV: one row per point,
+/// the contour's body and v∞ level on each.
+pub fn tisserand_csv(
+    contours: &[tourwright_astro::tisserand::Contour],
+    extra: &[(String, f64, f64)],
+) -> String {
+    let mut rows: Vec<Vec<String>> = Vec::new();
+    for c in contours {
+        for p in &c.points {
+            rows.push(vec![
+                c.body.clone(),
+                format!("{}", c.vinf_km_s),
+                format!("{:.6}", p.pump_deg),
+                format!("{:.9}", p.rp_au),
+                format!("{:.9}", p.ra_au),
+                format!("{:.6}", p.period_days),
+            ]);
+        }
+    }
+    for (label, rp, ra) in extra {
+        rows.push(vec![
+            label.clone(),
+            String::new(),
+            String::new(),
+            format!("{rp:.9}"),
+            format!("{ra:.9}"),
+            String::new(),
+        ]);
+    }
+    report::csv_text(
+        &[
+            "body",
+            "vinf_km_s",
+            "pump_deg",
+            "rp_au",
+            "ra_au",
+            "period_days",
+        ],
+        rows,
+    )
 }
 
 fn oem_time(t: Tdb) -> String {

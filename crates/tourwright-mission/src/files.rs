@@ -187,6 +187,16 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 "stops must be in time order",
             ));
         }
+        if k > 0 && t.0 - d.stops[k - 1].epoch.tdb().0 < MIN_LEG_S {
+            return Err(bad(
+                format!("stops[{k}].epoch"),
+                format!(
+                    "{:.0} s after the previous stop: a leg is at least an hour (patched conics \
+                     have no meaning for shorter ones)",
+                    t.0 - d.stops[k - 1].epoch.tdb().0
+                ),
+            ));
+        }
         let sw = &s.swingby;
         if let Some(m) = sw.min_altitude_km {
             // Not below the surface; at most about a hundred times Jupiter's radius.
@@ -402,6 +412,12 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 "need 0 < min_days ≤ max_days",
             ));
         }
+        if b.min_days < MIN_LEG_S / 86_400.0 {
+            return Err(bad(
+                format!("search.leg_tof[{k}].min_days"),
+                "a leg is at least an hour (1/24 day)",
+            ));
+        }
         in_range(
             format!("search.leg_tof[{k}].max_days"),
             b.max_days,
@@ -445,6 +461,11 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
     }
     Ok(())
 }
+
+/// Shortest leg a design may have, s (ours: a swing-by's hyperbola takes hours to days; two
+/// stops closer than an hour are a typing error or two labels of one instant, and a Lambert arc
+/// between them gives a v∞ of millions of km/s).
+pub const MIN_LEG_S: f64 = 3600.0;
 
 /// Largest design file read, bytes.
 pub const MAX_FILE_BYTES: u64 = 16 * 1024 * 1024;
@@ -569,6 +590,47 @@ fn check_strings(text: &str, path: &Path) -> Result<(), FileError> {
     Ok(())
 }
 
+/// Where the bad token is: a position past the end of a line's text (a parser that stopped after
+/// the last good token) moves to the first character of the next line that is not blank or a
+/// comment.
+fn token_position(text: &str, line: usize, col: usize) -> (usize, usize) {
+    let lines: Vec<&str> = text.lines().collect();
+    let Some(l) = line.checked_sub(1).and_then(|i| lines.get(i)) else {
+        return (line, col);
+    };
+    let content = l.split("//").next().unwrap_or("").trim_end();
+    if col <= content.chars().count() {
+        return (line, col);
+    }
+    for (i, next) in lines.iter().enumerate().skip(line) {
+        let t = next.trim_start();
+        if t.is_empty() || t.starts_with("//") {
+            continue;
+        }
+        return (i + 1, next.chars().count() - t.chars().count() + 1);
+    }
+    (line, col)
+}
+
+/// A parser's message with every long run of characters (an echoed 40 000-digit number, say) cut
+/// to its first 24 characters and its length.
+fn shorten_tokens(msg: &str) -> String {
+    let mut out = String::with_capacity(msg.len().min(512));
+    for (i, word) in msg.split(' ').enumerate() {
+        if i > 0 {
+            out.push(' ');
+        }
+        let n = word.chars().count();
+        if n > 48 {
+            out.extend(word.chars().take(24));
+            out.push_str(&format!("… ({n} characters)"));
+        } else {
+            out.push_str(word);
+        }
+    }
+    out
+}
+
 fn too_big(path: &Path) -> FileError {
     FileError::Parse {
         path: path.into(),
@@ -590,11 +652,14 @@ pub fn from_str(text: &str, path: &Path) -> Result<MissionDesign, FileError> {
     }
     check_strings(text, path)?;
     let opts = ron::Options::default().with_recursion_limit(64);
-    let mut d: MissionDesign = opts.from_str(text).map_err(|e| FileError::Parse {
-        path: path.into(),
-        line: e.span.start.line,
-        column: e.span.start.col,
-        reason: e.code.to_string(),
+    let mut d: MissionDesign = opts.from_str(text).map_err(|e| {
+        let (line, column) = token_position(text, e.span.start.line, e.span.start.col);
+        FileError::Parse {
+            path: path.into(),
+            line,
+            column,
+            reason: shorten_tokens(&e.code.to_string()),
+        }
     })?;
     // A kernel path is relative to the design file's folder.
     if let crate::design::EphemerisChoice::Kernel(k) = &mut d.ephemeris {
@@ -671,27 +736,70 @@ pub fn save(d: &MissionDesign, path: &Path) -> Result<(), FileError> {
             }
         }
     }
-    let text = to_string(d);
+    write_atomic(path, to_string(d).as_bytes())
+}
+
+/// True when the file at `path` holds a design (its first 4 KiB carry the design format tag): an
+/// export must never replace it.
+pub fn holds_design(path: &Path) -> bool {
+    use std::io::Read as _;
+    let Ok(mut f) = fs::File::open(path) else {
+        return false;
+    };
+    let mut head = vec![0u8; 4096];
+    let n = f.read(&mut head).unwrap_or(0);
+    String::from_utf8_lossy(&head[..n]).contains(FORMAT_TAG)
+}
+
+/// The file a path finally names: symbolic links followed (relative links against their own
+/// folder), the path itself when it is not a link. At most 40 links, as POSIX systems allow.
+pub fn link_target(path: &Path) -> std::io::Result<PathBuf> {
+    let mut p = path.to_path_buf();
+    for _ in 0..40 {
+        match fs::symlink_metadata(&p) {
+            Ok(m) if m.file_type().is_symlink() => {
+                let t = fs::read_link(&p)?;
+                p = if t.is_relative() {
+                    folder_of(&p).join(t)
+                } else {
+                    t
+                };
+            }
+            _ => return Ok(p),
+        }
+    }
+    Err(std::io::Error::other("too many levels of symbolic links"))
+}
+
+/// Write a file atomically: a uniquely named temporary file beside the target, flushed to disk,
+/// renamed over it. A symbolic link is written through (its target is replaced and the link
+/// stays); a target that exists and is not a regular file (a device, a pipe, a folder) is
+/// refused. The old file keeps its permissions. On any failure the old file is untouched.
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), FileError> {
     let io = |e| FileError::Io {
         path: path.into(),
         source: e,
     };
-    let dir = path
-        .parent()
-        .filter(|p| !p.as_os_str().is_empty())
-        .unwrap_or(Path::new("."));
-    let name = path
-        .file_name()
-        .ok_or_else(|| io(std::io::Error::other("no file name")))?;
-    let tmp = dir.join(format!(".{}.tmp", name.to_string_lossy()));
-    let write = || -> std::io::Result<()> {
-        let mut f = fs::File::create(&tmp)?;
-        f.write_all(text.as_bytes())?;
-        f.sync_all()?;
-        fs::rename(&tmp, path)
-    };
-    write().map_err(|e| {
-        let _ = fs::remove_file(&tmp);
-        io(e)
-    })
+    let target = link_target(path).map_err(io)?;
+    let old = fs::metadata(&target).ok();
+    if let Some(m) = &old {
+        if !m.is_file() {
+            return Err(io(std::io::Error::other(
+                "not a regular file; refusing to replace it",
+            )));
+        }
+    }
+    let dir = folder_of(&target);
+    let mut tmp = tempfile::Builder::new()
+        .prefix(".tourwright-")
+        .suffix(".tmp")
+        .tempfile_in(&dir)
+        .map_err(io)?;
+    tmp.write_all(bytes).map_err(io)?;
+    tmp.as_file().sync_all().map_err(io)?;
+    if let Some(m) = &old {
+        fs::set_permissions(tmp.path(), m.permissions()).map_err(io)?;
+    }
+    tmp.persist(&target).map_err(|e| io(e.error))?;
+    Ok(())
 }

@@ -133,25 +133,18 @@ impl Table {
 
     /// CSV with the machine keys as header; numbers at full precision, absent figures empty.
     pub fn to_csv(&self) -> String {
-        let mut s = self
-            .columns
-            .iter()
-            .map(|c| c.key)
-            .collect::<Vec<_>>()
-            .join(",");
-        s.push('\n');
-        for row in &self.rows {
-            let line: Vec<String> = row
-                .iter()
-                .map(|c| match c {
-                    Cell::Text(t) => csv_field(t),
-                    Cell::Num(Some(x)) => format!("{x}"),
-                    Cell::Num(None) => String::new(),
-                })
-                .collect();
-            let _ = writeln!(s, "{}", line.join(","));
-        }
-        s
+        csv_text(
+            &self.columns.iter().map(|c| c.key).collect::<Vec<_>>(),
+            self.rows.iter().map(|row| {
+                row.iter()
+                    .map(|c| match c {
+                        Cell::Text(t) => t.clone(),
+                        Cell::Num(Some(x)) => format!("{x}"),
+                        Cell::Num(None) => String::new(),
+                    })
+                    .collect::<Vec<_>>()
+            }),
+        )
     }
 
     /// Tab-separated text with the human headers (for the clipboard).
@@ -200,12 +193,22 @@ impl Table {
     }
 }
 
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
+/// CSV text (RFC 4180, through the `csv` crate: fields quoted when they need it) of a header
+/// and rows. Every CSV the program writes goes through here.
+pub fn csv_text<R, S>(header: &[&str], rows: impl IntoIterator<Item = R>) -> String
+where
+    R: IntoIterator<Item = S>,
+    S: AsRef<[u8]>,
+{
+    let mut w = csv::WriterBuilder::new()
+        .flexible(true)
+        .from_writer(Vec::with_capacity(4096));
+    // Writing to memory cannot fail; a row that could is skipped rather than panicking.
+    let _ = w.write_record(header);
+    for r in rows {
+        let _ = w.write_record(r);
     }
+    String::from_utf8(w.into_inner().unwrap_or_default()).unwrap_or_default()
 }
 
 const fn col(key: &'static str, header: &'static str, decimals: usize) -> Column {
@@ -465,78 +468,319 @@ pub fn summary_line(tour: &PreparedTour, e: &Evaluation) -> String {
     s
 }
 
-/// The whole evaluation as JSON: the event table as `stops`, launch, arrival, ledger, warnings.
-pub fn to_json(tour: &PreparedTour, e: &Evaluation) -> Value {
-    let mut table = events(tour, e);
-    table.rows.retain(|r| !is_dsm_row(r));
-    let mut stops = match table.to_json() {
-        Value::Array(a) => a,
-        _ => Vec::new(),
-    };
-    let dsms: Vec<Value> = e
-        .dsms()
-        .map(|(k, d)| {
-            json!({
-                "leg": k + 1,
-                "epoch_utc": d.t.to_iso_utc(),
-                "mjd2000": shown(d.t.mjd2000()),
-                "fraction_of_leg": shown(d.fraction),
-                "dv_km_s": shown(d.dv_km_s),
-                "dv_vector_km_s": [shown(d.dv.x), shown(d.dv.y), shown(d.dv.z)],
-                "sun_distance_au": shown(d.sun_distance_au()),
-                "energy_before_km2_s2": shown(d.energy_before),
-                "energy_after_km2_s2": shown(d.energy_after),
-                "mass_after_kg": shown(d.mass_after_kg),
-            })
+/// The whole evaluation for machines (`eval --json`): the event table's stop rows as `stops`
+/// (with the swing-by figures that are not table columns), the manoeuvres, launch, arrival, the
+/// ledger, warnings and the caution. Keys carry their units.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct EvalReport {
+    /// Design name.
+    pub name: String,
+    /// The sequence, e.g. `E-V-E-J`.
+    pub sequence: String,
+    /// The ephemeris model's name.
+    pub ephemeris: String,
+    /// True when every leg was solved.
+    pub complete: bool,
+    /// One per stop.
+    pub stops: Vec<StopReport>,
+    /// One per deep-space manoeuvre.
+    pub dsms: Vec<DsmReport>,
+    /// Launch figures.
+    pub launch: LaunchReport,
+    /// Arrival figures.
+    pub arrival: ArrivalReport,
+    /// Total time of flight, days.
+    pub total_tof_days: Option<f64>,
+    /// The Δv and mass budget.
+    pub ledger: LedgerReport,
+    /// Warnings in words.
+    pub warnings: Vec<String>,
+    /// The caution that goes with every figure.
+    pub caution: &'static str,
+}
+
+/// One stop of [`EvalReport`]: the event table's columns (absent figures are `null`).
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct StopReport {
+    /// Stop number, from 1.
+    pub stop: usize,
+    /// Launch, Swing-by or Arrival.
+    pub kind: String,
+    /// Body name.
+    pub body: String,
+    /// Epoch, ISO-8601 UTC.
+    pub epoch_utc: String,
+    /// Epoch, MJD2000 (TDB).
+    pub mjd2000: Option<f64>,
+    /// v∞ arriving, km/s.
+    pub vinf_in_km_s: Option<f64>,
+    /// v∞ leaving, km/s.
+    pub vinf_out_km_s: Option<f64>,
+    /// Periapsis altitude, km.
+    pub periapsis_altitude_km: Option<f64>,
+    /// Turn angle, degrees.
+    pub turn_deg: Option<f64>,
+    /// Powered swing-by impulse, km/s.
+    pub powered_dv_km_s: Option<f64>,
+    /// B·T, km.
+    pub b_t_km: Option<f64>,
+    /// B·R, km.
+    pub b_r_km: Option<f64>,
+    /// B-plane aim, degrees.
+    pub aim_deg: Option<f64>,
+    /// Heliocentric speed before, km/s.
+    pub speed_before_km_s: Option<f64>,
+    /// Heliocentric speed after, km/s.
+    pub speed_after_km_s: Option<f64>,
+    /// Heliocentric energy before, km²/s².
+    pub energy_before_km2_s2: Option<f64>,
+    /// Heliocentric energy after, km²/s².
+    pub energy_after_km2_s2: Option<f64>,
+    /// Energy gain, km²/s².
+    pub energy_gain_km2_s2: Option<f64>,
+    /// Spacecraft Δv at the stop, km/s.
+    pub dv_km_s: Option<f64>,
+    /// Mass after the stop, kg.
+    pub mass_after_kg: Option<f64>,
+    /// Distance from the Sun, AU.
+    pub sun_distance_au: Option<f64>,
+    /// Swing-by figures that are not table columns (swing-bys only).
+    pub swingby: Option<SwingbyReport>,
+}
+
+/// Swing-by extras of a [`StopReport`].
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct SwingbyReport {
+    /// Altitude and aim set by the designer (the next leg is ballistic).
+    pub shaped: bool,
+    /// Periapsis radius, km.
+    pub periapsis_radius_km: Option<f64>,
+    /// Minimum altitude in force, km.
+    pub min_altitude_km: Option<f64>,
+    /// Largest unpowered turn at the minimum altitude, degrees.
+    pub turn_available_deg: Option<f64>,
+    /// Eccentricity of the incoming hyperbola.
+    pub e_in: Option<f64>,
+    /// Eccentricity of the outgoing hyperbola.
+    pub e_out: Option<f64>,
+    /// |v∞ out − v∞ in|, km/s.
+    pub planet_dv_km_s: Option<f64>,
+    /// A shaped swing-by's miss at the next stop's epoch, km.
+    pub miss_km: Option<f64>,
+    /// Closest approach to the next body on the ballistic leg, km.
+    pub closest_approach_km: Option<f64>,
+    /// When, ISO-8601 UTC.
+    pub closest_approach_utc: Option<String>,
+}
+
+/// A deep-space manoeuvre of [`EvalReport`].
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct DsmReport {
+    /// Leg number, from 1.
+    pub leg: usize,
+    /// When, ISO-8601 UTC.
+    pub epoch_utc: String,
+    /// When, MJD2000.
+    pub mjd2000: Option<f64>,
+    /// Where on the leg, as a fraction of its time of flight.
+    pub fraction_of_leg: Option<f64>,
+    /// Impulse, km/s.
+    pub dv_km_s: Option<f64>,
+    /// Impulse vector (ecliptic J2000), km/s.
+    pub dv_vector_km_s: [Option<f64>; 3],
+    /// Distance from the Sun, AU.
+    pub sun_distance_au: Option<f64>,
+    /// Heliocentric energy before, km²/s².
+    pub energy_before_km2_s2: Option<f64>,
+    /// Heliocentric energy after, km²/s².
+    pub energy_after_km2_s2: Option<f64>,
+    /// Mass after, kg.
+    pub mass_after_kg: Option<f64>,
+}
+
+/// Launch figures of [`EvalReport`].
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct LaunchReport {
+    /// C3, km²/s².
+    pub c3_km2_s2: Option<f64>,
+    /// v∞, km/s.
+    pub vinf_km_s: Option<f64>,
+    /// Declination of the launch asymptote, degrees.
+    pub dla_deg: Option<f64>,
+    /// Right ascension of the launch asymptote, degrees.
+    pub rla_deg: Option<f64>,
+    /// Mass the launch vehicle injects at this C3, kg.
+    pub injected_mass_kg: Option<f64>,
+}
+
+/// Arrival figures of [`EvalReport`].
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct ArrivalReport {
+    /// v∞, km/s.
+    pub vinf_km_s: Option<f64>,
+    /// Δv of the arrival goal, km/s.
+    pub dv_km_s: Option<f64>,
+}
+
+/// The budget of [`EvalReport`].
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct LedgerReport {
+    /// Total spacecraft Δv, km/s.
+    pub total_dv_km_s: Option<f64>,
+    /// Wet mass at launch, kg.
+    pub wet_mass_kg: Option<f64>,
+    /// Propellant needed, kg.
+    pub propellant_needed_kg: Option<f64>,
+    /// Propellant loaded minus needed, kg.
+    pub propellant_margin_kg: Option<f64>,
+    /// Mass after the last manoeuvre, kg.
+    pub final_mass_kg: Option<f64>,
+    /// Launch-vehicle capacity minus wet mass, kg.
+    pub lv_margin_kg: Option<f64>,
+    /// Mass delivered when the launch vehicle is filled, kg.
+    pub delivered_mass_kg: Option<f64>,
+    /// The ledger table's rows.
+    pub manoeuvres: Vec<LedgerRow>,
+}
+
+/// One row of the ledger table.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct LedgerRow {
+    /// What the row is.
+    pub item: String,
+    /// Where.
+    pub body: String,
+    /// When, ISO-8601 UTC.
+    pub epoch_utc: String,
+    /// Δv, km/s.
+    pub dv_km_s: Option<f64>,
+    /// Mass after, kg.
+    pub mass_after_kg: Option<f64>,
+}
+
+fn text_of(c: &Cell) -> String {
+    match c {
+        Cell::Text(t) => t.clone(),
+        Cell::Num(Some(x)) => x.to_string(),
+        Cell::Num(None) => String::new(),
+    }
+}
+
+/// The whole evaluation for machines (see [`EvalReport`]). The stop and ledger rows are the
+/// tables' own rows: one source for text, CSV, JSON and the workbench.
+pub fn eval_report(tour: &PreparedTour, e: &Evaluation) -> EvalReport {
+    let table = events(tour, e);
+    let stops = table
+        .rows
+        .iter()
+        .filter(|r| !is_dsm_row(r))
+        .enumerate()
+        .map(|(k, r)| {
+            let n = |i: usize| r.get(i).and_then(Cell::num);
+            StopReport {
+                stop: k + 1,
+                kind: text_of(&r[1]),
+                body: text_of(&r[2]),
+                epoch_utc: text_of(&r[3]),
+                mjd2000: n(4),
+                vinf_in_km_s: n(5),
+                vinf_out_km_s: n(6),
+                periapsis_altitude_km: n(7),
+                turn_deg: n(8),
+                powered_dv_km_s: n(9),
+                b_t_km: n(10),
+                b_r_km: n(11),
+                aim_deg: n(12),
+                speed_before_km_s: n(13),
+                speed_after_km_s: n(14),
+                energy_before_km2_s2: n(15),
+                energy_after_km2_s2: n(16),
+                energy_gain_km2_s2: n(17),
+                dv_km_s: n(18),
+                mass_after_kg: n(19),
+                sun_distance_au: n(20),
+                swingby: e
+                    .stops
+                    .get(k)
+                    .and_then(|s| s.swingby)
+                    .map(|sw| SwingbyReport {
+                        shaped: sw.shaped,
+                        periapsis_radius_km: sw.rp_km.and_then(shown),
+                        min_altitude_km: shown(sw.min_altitude_km),
+                        turn_available_deg: sw.turn_available_rad.map(f64::to_degrees),
+                        e_in: sw.e_in,
+                        e_out: sw.e_out,
+                        planet_dv_km_s: shown(sw.planet_dv_km_s),
+                        miss_km: sw.miss_km,
+                        closest_approach_km: sw.closest_approach.map(|c| c.0),
+                        closest_approach_utc: sw.closest_approach.map(|c| c.1.to_iso_utc()),
+                    }),
+            }
         })
         .collect();
-    // Swing-by extras that are not table columns.
-    for (k, v) in stops.iter_mut().enumerate() {
-        if let (Some(sw), Value::Object(m)) = (e.stops[k].swingby, v) {
-            m.insert(
-                "swingby".into(),
-                json!({
-                    "shaped": sw.shaped,
-                    "periapsis_radius_km": sw.rp_km.and_then(shown),
-                    "min_altitude_km": shown(sw.min_altitude_km),
-                    "turn_available_deg": sw.turn_available_rad.map(f64::to_degrees),
-                    "e_in": sw.e_in, "e_out": sw.e_out,
-                    "planet_dv_km_s": shown(sw.planet_dv_km_s),
-                    "miss_km": sw.miss_km,
-                    "closest_approach_km": sw.closest_approach.map(|c| c.0),
-                    "closest_approach_utc": sw.closest_approach.map(|c| c.1.to_iso_utc()),
-                }),
-            );
-        }
-    }
+    let dsms = e
+        .dsms()
+        .map(|(k, d)| DsmReport {
+            leg: k + 1,
+            epoch_utc: d.t.to_iso_utc(),
+            mjd2000: shown(d.t.mjd2000()),
+            fraction_of_leg: shown(d.fraction),
+            dv_km_s: shown(d.dv_km_s),
+            dv_vector_km_s: [shown(d.dv.x), shown(d.dv.y), shown(d.dv.z)],
+            sun_distance_au: shown(d.sun_distance_au()),
+            energy_before_km2_s2: shown(d.energy_before),
+            energy_after_km2_s2: shown(d.energy_after),
+            mass_after_kg: shown(d.mass_after_kg),
+        })
+        .collect();
     let l = &e.ledger;
-    json!({
-        "name": tour.name,
-        "sequence": tour.sequence_label(),
-        "ephemeris": tour.ephemeris_name,
-        "complete": e.complete,
-        "stops": stops,
-        "dsms": dsms,
-        "launch": {
-            "c3_km2_s2": shown(e.launch.c3), "vinf_km_s": shown(e.launch.vinf),
-            "dla_deg": shown(e.launch.dla_deg), "rla_deg": shown(e.launch.rla_deg),
-            "injected_mass_kg": e.launch.injected_mass_kg,
+    EvalReport {
+        name: tour.name.clone(),
+        sequence: tour.sequence_label(),
+        ephemeris: tour.ephemeris_name.clone(),
+        complete: e.complete,
+        stops,
+        dsms,
+        launch: LaunchReport {
+            c3_km2_s2: shown(e.launch.c3),
+            vinf_km_s: shown(e.launch.vinf),
+            dla_deg: shown(e.launch.dla_deg),
+            rla_deg: shown(e.launch.rla_deg),
+            injected_mass_kg: e.launch.injected_mass_kg,
         },
-        "arrival": { "vinf_km_s": shown(e.arrival.vinf), "dv_km_s": shown(e.arrival.dv_km_s) },
-        "total_tof_days": shown(e.total_tof_days()),
-        "ledger": {
-            "total_dv_km_s": shown(l.total_dv_km_s),
-            "wet_mass_kg": shown(l.wet_mass_kg),
-            "propellant_needed_kg": shown(l.propellant_needed_kg),
-            "propellant_margin_kg": shown(l.propellant_margin_kg),
-            "final_mass_kg": shown(l.final_mass_kg),
-            "lv_margin_kg": l.lv_margin_kg,
-            "delivered_mass_kg": l.delivered_mass_kg,
-            "manoeuvres": ledger(tour, e).to_json(),
+        arrival: ArrivalReport {
+            vinf_km_s: shown(e.arrival.vinf),
+            dv_km_s: shown(e.arrival.dv_km_s),
         },
-        "warnings": e.warnings.iter().map(|w| w.to_string()).collect::<Vec<_>>(),
-        "caution": crate::CAUTION,
-    })
+        total_tof_days: shown(e.total_tof_days()),
+        ledger: LedgerReport {
+            total_dv_km_s: shown(l.total_dv_km_s),
+            wet_mass_kg: shown(l.wet_mass_kg),
+            propellant_needed_kg: shown(l.propellant_needed_kg),
+            propellant_margin_kg: shown(l.propellant_margin_kg),
+            final_mass_kg: shown(l.final_mass_kg),
+            lv_margin_kg: l.lv_margin_kg,
+            delivered_mass_kg: l.delivered_mass_kg,
+            manoeuvres: ledger(tour, e)
+                .rows
+                .iter()
+                .map(|r| LedgerRow {
+                    item: text_of(&r[0]),
+                    body: text_of(&r[1]),
+                    epoch_utc: text_of(&r[2]),
+                    dv_km_s: r[3].num(),
+                    mass_after_kg: r[4].num(),
+                })
+                .collect(),
+        },
+        warnings: e.warnings.iter().map(|w| w.to_string()).collect(),
+        caution: crate::CAUTION,
+    }
+}
+
+/// [`eval_report`] as a JSON value.
+pub fn to_json(tour: &PreparedTour, e: &Evaluation) -> Value {
+    serde_json::to_value(eval_report(tour, e)).unwrap_or(Value::Null)
 }
 
 /// The whole evaluation as text: the event table, launch and arrival lines, the ledger, warnings

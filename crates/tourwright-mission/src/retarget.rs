@@ -36,6 +36,10 @@ pub enum RetargetError {
     /// The iteration ended without meeting the body.
     #[error("could not meet the next body (closest miss {0:.0} km)")]
     NoConvergence(f64),
+    /// The swing-by that meets the body is not a valid design (the field and why), e.g. a
+    /// periapsis inside the planet or a date that overtakes the next stop.
+    #[error("the swing-by that meets the next body is not a valid design: {0}")]
+    Invalid(String),
 }
 
 /// Outcome of a successful retarget.
@@ -108,6 +112,7 @@ pub fn retarget(
             s.epoch = shift_epoch(s.epoch, shift);
         }
     }
+    crate::files::validate(&out).map_err(|i| RetargetError::Invalid(i.to_string()))?;
     Ok(Retargeted {
         design: out,
         miss_km: cur.norm(),

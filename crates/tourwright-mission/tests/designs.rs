@@ -460,3 +460,82 @@ fn mga_benchmark_model_reproduces_the_cassini1_check_values() {
     let total = e.launch.vinf + e.ledger.total_dv_km_s;
     assert!((total - 4.93073).abs() < 5e-4, "total {total}");
 }
+
+#[test]
+fn retarget_returns_only_designs_that_validate() {
+    // A seeded sweep of shaped swing-bys moved far from where they meet their next body (altitude
+    // scaled or below the surface, aim anywhere, dates moved by weeks): whatever retarget returns
+    // must load like a file would; otherwise it says what it could not meet.
+    let mut state = 0x5EED_2026_u64;
+    let mut next = || {
+        state = state
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        (state >> 11) as f64 / (1u64 << 53) as f64
+    };
+    let (mut ok, mut refused) = (0, 0);
+    for f in samples() {
+        let d0 = files::load(&f).unwrap();
+        let shaped: Vec<usize> = (1..d0.stops.len() - 1)
+            .filter(|&k| {
+                matches!(d0.stops[k].swingby.mode, SwingbyMode::Shaped { .. })
+                    && d0.leg(k).dsm.is_none()
+            })
+            .collect();
+        for &k in &shaped {
+            for case in 0..40 {
+                let mut d = d0.clone();
+                if let SwingbyMode::Shaped { altitude_km, .. } = d.stops[k].swingby.mode {
+                    d.stops[k].swingby.mode = SwingbyMode::Shaped {
+                        altitude_km: if case % 5 == 0 {
+                            -500.0 * next()
+                        } else {
+                            altitude_km * (0.2 + 5.0 * next())
+                        },
+                        aim_deg: 360.0 * next() - 180.0,
+                    };
+                }
+                let shift = 60.0 * next() - 30.0;
+                d.stops[k + 1].epoch = d.stops[k + 1].epoch.plus_days(shift);
+                if files::validate(&d).is_err() {
+                    continue;
+                }
+                match retarget::retarget(&d, k, case % 2 == 0) {
+                    Ok(r) => {
+                        files::validate(&r.design).unwrap_or_else(|e| {
+                            panic!("{}: stop {k} case {case}: {e}", f.display())
+                        });
+                        ok += 1;
+                    }
+                    Err(e) => {
+                        assert!(!e.to_string().is_empty());
+                        refused += 1;
+                    }
+                }
+            }
+        }
+    }
+    assert!(ok > 0 && ok + refused > 40, "{ok} retargeted, {refused} refused");
+}
+
+#[cfg(unix)]
+#[test]
+fn a_save_writes_through_a_link_and_keeps_the_file_mode() {
+    use std::os::unix::fs::PermissionsExt as _;
+    let dir = tempfile::tempdir().unwrap();
+    let d = files::load(&samples()[0]).unwrap();
+    let target = dir.path().join("real.tour.ron");
+    files::save(&d, &target).unwrap();
+    std::fs::set_permissions(&target, std::fs::Permissions::from_mode(0o640)).unwrap();
+    let link = dir.path().join("link.tour.ron");
+    std::os::unix::fs::symlink("real.tour.ron", &link).unwrap();
+    let mut e = d.clone();
+    e.name = "through the link".into();
+    files::save(&e, &link).unwrap();
+    assert!(std::fs::symlink_metadata(&link).unwrap().file_type().is_symlink());
+    assert_eq!(files::load(&target).unwrap().name, "through the link");
+    let mode = std::fs::metadata(&target).unwrap().permissions().mode() & 0o777;
+    assert_eq!(mode, 0o640);
+    // Special files are refused and left alone.
+    assert!(files::save(&e, Path::new("/dev/null")).is_err());
+}

@@ -151,29 +151,36 @@ impl WindowMap {
     }
     /// The grid as CSV (one line per cell).
     pub fn to_csv(&self) -> String {
-        use std::fmt::Write as _;
-        let mut s = String::from(
-            "depart_utc,arrive_utc,tof_days,c3_km2_s2,vinf_depart_km_s,vinf_arrive_km_s,total_dv_km_s,solved\n",
-        );
+        let mut rows = Vec::with_capacity(self.spec.nx * self.spec.ny);
         for j in 0..self.spec.ny {
             for i in 0..self.spec.nx {
                 let c = self.cell(i, j);
                 let (a, b) = self.epochs(i, j);
-                let _ = writeln!(
-                    s,
-                    "{},{},{:.4},{:.6},{:.6},{:.6},{:.6},{}",
+                rows.push(vec![
                     a.to_date_utc(),
                     b.to_date_utc(),
-                    c.tof_days,
-                    c.c3,
-                    c.vinf_depart,
-                    c.vinf_arrive,
-                    c.total_dv,
-                    c.solved
-                );
+                    format!("{:.4}", c.tof_days),
+                    format!("{:.6}", c.c3),
+                    format!("{:.6}", c.vinf_depart),
+                    format!("{:.6}", c.vinf_arrive),
+                    format!("{:.6}", c.total_dv),
+                    c.solved.to_string(),
+                ]);
             }
         }
-        s
+        tourwright_mission::report::csv_text(
+            &[
+                "depart_utc",
+                "arrive_utc",
+                "tof_days",
+                "c3_km2_s2",
+                "vinf_depart_km_s",
+                "vinf_arrive_km_s",
+                "total_dv_km_s",
+                "solved",
+            ],
+            rows,
+        )
     }
 }
 

@@ -397,7 +397,7 @@ pub fn coast_track(tour: &PreparedTour, e: &Evaluation, k: usize, n: usize) -> V
 }
 
 /// A heliocentric arc of an evaluated tour as a point of the Tisserand graph.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
 pub struct ArcOrbit {
     /// Leg index.
     pub leg: usize,
