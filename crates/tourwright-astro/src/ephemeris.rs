@@ -19,37 +19,9 @@ use crate::mga_model::MgaElements;
 use crate::time::{Epoch, Tdb};
 use crate::{State, Vec3};
 
-/// Why a state could not be given.
-#[derive(Clone, Debug, PartialEq, thiserror::Error)]
-pub enum EphemerisError {
-    /// The epoch lies outside the source's validity interval.
-    #[error("epoch {epoch} outside the ephemeris range {from} .. {to}")]
-    OutOfRange {
-        /// The epoch asked for (ISO text).
-        epoch: String,
-        /// Start of validity (ISO text).
-        from: String,
-        /// End of validity (ISO text).
-        to: String,
-    },
-    /// The orbit could not be evaluated (degenerate elements).
-    #[error("orbit cannot be evaluated: {0}")]
-    Orbit(String),
-    /// The source has no such body.
-    #[error("{0}")]
-    NoBody(String),
-    /// An ephemeris kernel could not be used (file named in the text).
-    #[error("ephemeris kernel {0}")]
-    Kernel(String),
-}
-
-/// A source of heliocentric ecliptic J2000 states.
-pub trait Ephemeris {
-    /// Position (km) and velocity (km/s) at `t`.
-    fn state(&self, t: Tdb) -> Result<State, EphemerisError>;
-    /// First and last instants this source is valid for.
-    fn valid_range(&self) -> (Tdb, Tdb);
-}
+pub use crate::source::{
+    Ephemeris, EphemerisError, check_range, ecliptic_to_equatorial, equatorial_to_ecliptic,
+};
 
 /// One row of the mean-element table: values at J2000 and rates per Julian century.
 /// a in AU, e, then angles in degrees: I, L (mean longitude), ϖ (longitude of perihelion),
@@ -307,22 +279,6 @@ impl MeanElements {
     }
 }
 
-/// An error unless `t` lies within `range` (inclusive).
-pub fn check_range(t: Tdb, range: (Tdb, Tdb)) -> Result<(), EphemerisError> {
-    if !(t.0 >= range.0.0 && t.0 <= range.1.0) {
-        return Err(EphemerisError::OutOfRange {
-            epoch: if t.0.is_finite() {
-                t.to_date_utc()
-            } else {
-                "not a number".into()
-            },
-            from: range.0.to_date_utc(),
-            to: range.1.to_date_utc(),
-        });
-    }
-    Ok(())
-}
-
 impl Ephemeris for MeanElements {
     fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
         check_range(t, self.valid_range())?;
@@ -556,17 +512,4 @@ impl Ephemeris for OsculatingOrbit {
     fn valid_range(&self) -> (Tdb, Tdb) {
         mean_element_range()
     }
-}
-
-/// Rotate an ecliptic J2000 vector into the Earth mean equator and equinox of J2000 (EME2000)
-/// about x by the obliquity.
-pub fn ecliptic_to_equatorial(v: &Vec3) -> Vec3 {
-    let (s, c) = crate::constants::OBLIQUITY_J2000_RAD.sin_cos();
-    Vec3::new(v.x, c * v.y - s * v.z, s * v.y + c * v.z)
-}
-
-/// Inverse of [`ecliptic_to_equatorial`].
-pub fn equatorial_to_ecliptic(v: &Vec3) -> Vec3 {
-    let (s, c) = crate::constants::OBLIQUITY_J2000_RAD.sin_cos();
-    Vec3::new(v.x, c * v.y + s * v.z, -s * v.y + c * v.z)
 }

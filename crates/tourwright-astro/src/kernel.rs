@@ -21,7 +21,7 @@ use std::sync::Mutex;
 use anise::prelude::{Almanac, Frame, SPK};
 
 use crate::bodies::Planet;
-use crate::ephemeris::{EphemerisError, equatorial_to_ecliptic};
+use crate::source::{EphemerisError, equatorial_to_ecliptic};
 use crate::time::{Epoch, Tdb, TimeScale};
 use crate::{State, Vec3};
 

@@ -10,6 +10,7 @@ pub mod kernel;
 pub mod lambert;
 pub mod mga_model;
 pub mod nbody;
+pub mod source;
 pub mod time;
 pub mod tisserand;
 pub mod transfer;

@@ -12,8 +12,8 @@ use std::f64::consts::TAU;
 use crate::State;
 use crate::bodies::{BodyData, Planet};
 use crate::constants::DEG;
-use crate::ephemeris::{Ephemeris, EphemerisError, check_range};
 use crate::kepler::{self, Elements};
+use crate::source::{Ephemeris, EphemerisError, check_range};
 use crate::time::Tdb;
 
 /// The model's astronomical unit, km.

@@ -515,7 +515,10 @@ fn retarget_returns_only_designs_that_validate() {
             }
         }
     }
-    assert!(ok > 0 && ok + refused > 40, "{ok} retargeted, {refused} refused");
+    assert!(
+        ok > 0 && ok + refused > 40,
+        "{ok} retargeted, {refused} refused"
+    );
 }
 
 #[cfg(unix)]
@@ -532,7 +535,12 @@ fn a_save_writes_through_a_link_and_keeps_the_file_mode() {
     let mut e = d.clone();
     e.name = "through the link".into();
     files::save(&e, &link).unwrap();
-    assert!(std::fs::symlink_metadata(&link).unwrap().file_type().is_symlink());
+    assert!(
+        std::fs::symlink_metadata(&link)
+            .unwrap()
+            .file_type()
+            .is_symlink()
+    );
     assert_eq!(files::load(&target).unwrap().name, "through the link");
     let mode = std::fs::metadata(&target).unwrap().permissions().mode() & 0o777;
     assert_eq!(mode, 0o640);
