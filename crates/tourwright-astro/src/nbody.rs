@@ -117,6 +117,16 @@ pub enum NBodyError {
     /// The integrator gave up (step size too small, too many steps, stiffness).
     #[error("the n-body integration failed: {0}")]
     Integration(String),
+    /// The integrator gave up at an instant and place (a pass through a body, usually).
+    #[error("the n-body integration stalled at TDB {t:.0} s ({why})")]
+    Stalled {
+        /// The last instant reached, TDB seconds past J2000.
+        t: f64,
+        /// The position there (the first three components of the state).
+        r: [f64; 3],
+        /// The integrator's words.
+        why: String,
+    },
     /// A body's position could not be had.
     #[error(transparent)]
     Ephemeris(#[from] EphemerisError),
@@ -321,9 +331,20 @@ where
         // output is wrong when the only requested point is the end of the span.)
         ode_solvers::dop_shared::OutputType::Sparse,
     );
-    let stats = stepper
-        .integrate()
-        .map_err(|e| NBodyError::Integration(format!("{e:?}")))?;
+    let stats = match stepper.integrate() {
+        Ok(s) => s,
+        Err(e) => {
+            // Where it stopped: the last accepted step (time is the last component).
+            return Err(match stepper.y_out().last() {
+                Some(y) if N > 3 => NBodyError::Stalled {
+                    t: y[N - 1],
+                    r: [y[0], y[1], y[2]],
+                    why: format!("{e:?}"),
+                },
+                _ => NBodyError::Integration(format!("{e:?}")),
+            });
+        }
+    };
     if cancel() {
         return Err(NBodyError::Cancelled);
     }

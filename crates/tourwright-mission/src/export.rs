@@ -134,11 +134,20 @@ fn oem_time(t: Tdb) -> String {
     )
 }
 
-/// The trajectory as a CCSDS OEM (KVN), version 2.0, time system TDB, one segment per leg and a
-/// new segment at each deep-space manoeuvre (the velocity is discontinuous there, so no
-/// interpolation may cross it).
-/// `creation` is the CREATION_DATE written in the header (UTC).
-pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
+/// One OEM segment: its comment and its states (heliocentric ecliptic J2000, time order).
+struct Segment<'s> {
+    comment: String,
+    states: Vec<(Tdb, &'s State)>,
+}
+
+/// Write an OEM (KVN, version 2.0, TDB, Sun-centred EME2000) of `segments`.
+fn oem_text(
+    tour: &PreparedTour,
+    what: &str,
+    segments: &[Segment<'_>],
+    extra_comments: &[String],
+    creation: Epoch,
+) -> String {
     let mut out = String::new();
     let object = if tour.spacecraft.name.is_empty() {
         tour.name.as_str()
@@ -148,10 +157,13 @@ pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
     let _ = writeln!(out, "CCSDS_OEM_VERS = 2.0");
     let _ = writeln!(
         out,
-        "COMMENT Tourwright {} patched-conic trajectory of design \"{}\"",
+        "COMMENT Tourwright {} {what} of design \"{}\"",
         crate::VERSION,
         tour.name.replace(['\n', '"'], " ")
     );
+    for c in extra_comments {
+        let _ = writeln!(out, "COMMENT {}", c.replace('\n', " "));
+    }
     let _ = writeln!(
         out,
         "COMMENT Preliminary design only: confirm in high-fidelity tools."
@@ -168,8 +180,8 @@ pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
         c.second.min(59)
     );
     let _ = writeln!(out, "ORIGINATOR = TOURWRIGHT");
-    for (k, piece, range) in pieces(e) {
-        let pts = &e.samples[range];
+    for seg in segments {
+        let pts = &seg.states;
         if pts.is_empty() {
             continue;
         }
@@ -180,31 +192,19 @@ pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
         let _ = writeln!(out, "CENTER_NAME = SUN");
         let _ = writeln!(out, "REF_FRAME = EME2000");
         let _ = writeln!(out, "TIME_SYSTEM = TDB");
-        let _ = writeln!(out, "START_TIME = {}", oem_time(pts[0].t));
-        let _ = writeln!(out, "STOP_TIME = {}", oem_time(pts[pts.len() - 1].t));
+        let _ = writeln!(out, "START_TIME = {}", oem_time(pts[0].0));
+        let _ = writeln!(out, "STOP_TIME = {}", oem_time(pts[pts.len() - 1].0));
         let _ = writeln!(out, "INTERPOLATION = HERMITE");
         let _ = writeln!(out, "INTERPOLATION_DEGREE = 5");
         let _ = writeln!(out, "META_STOP");
-        let what = match (e.legs[k].dsm.is_some(), piece) {
-            (false, _) => String::new(),
-            (true, 1) => ", coast to the deep-space manoeuvre".into(),
-            (true, _) => ", arc after the deep-space manoeuvre".into(),
-        };
-        let _ = writeln!(
-            out,
-            "COMMENT Leg {} of {}: {} to {}{what}",
-            k + 1,
-            e.legs.len(),
-            tour.stops[k].body.name,
-            tour.stops[k + 1].body.name
-        );
-        for p in pts {
-            let r = ecliptic_to_equatorial(&p.state.r);
-            let v = ecliptic_to_equatorial(&p.state.v);
+        let _ = writeln!(out, "COMMENT {}", seg.comment.replace('\n', " "));
+        for (t, s) in pts {
+            let r = ecliptic_to_equatorial(&s.r);
+            let v = ecliptic_to_equatorial(&s.v);
             let _ = writeln!(
                 out,
                 "{} {:.6} {:.6} {:.6} {:.9} {:.9} {:.9}",
-                oem_time(p.t),
+                oem_time(*t),
                 r.x,
                 r.y,
                 r.z,
@@ -215,6 +215,82 @@ pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
         }
     }
     out
+}
+
+/// The trajectory as a CCSDS OEM (KVN), version 2.0, time system TDB, one segment per leg and a
+/// new segment at each deep-space manoeuvre (the velocity is discontinuous there, so no
+/// interpolation may cross it).
+/// `creation` is the CREATION_DATE written in the header (UTC).
+pub fn oem(tour: &PreparedTour, e: &Evaluation, creation: Epoch) -> String {
+    let segments: Vec<Segment<'_>> = pieces(e)
+        .into_iter()
+        .map(|(k, piece, range)| {
+            let what = match (e.legs[k].dsm.is_some(), piece) {
+                (false, _) => String::new(),
+                (true, 1) => ", coast to the deep-space manoeuvre".into(),
+                (true, _) => ", arc after the deep-space manoeuvre".into(),
+            };
+            Segment {
+                comment: format!(
+                    "Leg {} of {}: {} to {}{what}",
+                    k + 1,
+                    e.legs.len(),
+                    tour.stops[k].body.name,
+                    tour.stops[k + 1].body.name
+                ),
+                states: e.samples[range].iter().map(|p| (p.t, &p.state)).collect(),
+            }
+        })
+        .collect();
+    oem_text(tour, "patched-conic trajectory", &segments, &[], creation)
+}
+
+/// The converged continuous n-body trajectory as a CCSDS OEM: one segment per coast arc between
+/// impulses, every integration step (at least one state a day, hourly within two days of each
+/// encounter). The header's comments name the force model (bodies, GM values, ephemeris).
+pub fn continuous_oem(
+    tour: &PreparedTour,
+    c: &crate::continuous::Continuous,
+    creation: Epoch,
+) -> String {
+    let segments: Vec<Segment<'_>> = c
+        .arcs
+        .iter()
+        .enumerate()
+        .map(|(i, a)| Segment {
+            comment: format!("Coast arc {} of {}: {}", i + 1, c.arcs.len(), a.label),
+            states: a.states.iter().map(|(t, s)| (*t, s)).collect(),
+        })
+        .collect();
+    let mut comments = vec![
+        format!(
+            "Force model: the Sun (GM {} km^3/s^2) and, as point masses, {}",
+            c.model.gm_sun_km3_s2,
+            c.model
+                .bodies
+                .iter()
+                .map(|b| format!("{} (GM {} km^3/s^2)", b.name, b.gm_km3_s2))
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+        format!(
+            "Ephemeris: {}; GM values: {}; Earth-Moon: {}",
+            c.model.ephemeris, c.model.gm_set, c.model.earth_moon
+        ),
+    ];
+    if !c.converged {
+        comments.push(format!(
+            "NOT CONVERGED: {}",
+            c.failure.as_deref().unwrap_or("unknown")
+        ));
+    }
+    oem_text(
+        tour,
+        "continuous n-body trajectory",
+        &segments,
+        &comments,
+        creation,
+    )
 }
 
 /// Keyword = value pairs in file order.

@@ -5,6 +5,7 @@
 //! high-fidelity, independently verified tools before any commitment.
 
 pub mod arrival;
+pub mod continuous;
 pub mod design;
 pub mod edit;
 pub mod evaluate;
