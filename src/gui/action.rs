@@ -85,6 +85,8 @@ pub enum PathPurpose {
     SamplesCsv,
     /// Export the OEM.
     Oem,
+    /// Export the converged continuous n-body trajectory as an OEM.
+    ContinuousOem,
     /// Save a picture of the current view.
     Picture,
     /// Choose a JPL SPK kernel as the design's ephemeris.
@@ -93,11 +95,15 @@ pub enum PathPurpose {
 
 impl PathPurpose {
     /// Every export, with its menu label.
-    pub const EXPORTS: [(&'static str, PathPurpose); 5] = [
+    pub const EXPORTS: [(&'static str, PathPurpose); 6] = [
         ("Event table (CSV)…", PathPurpose::EventsCsv),
         ("Ledger (CSV)…", PathPurpose::LedgerCsv),
         ("Trajectory samples (CSV)…", PathPurpose::SamplesCsv),
         ("Trajectory (CCSDS OEM)…", PathPurpose::Oem),
+        (
+            "Continuous n-body trajectory (CCSDS OEM)…",
+            PathPurpose::ContinuousOem,
+        ),
         ("Picture of the current view (PNG)…", PathPurpose::Picture),
     ];
 }
@@ -130,6 +136,8 @@ pub enum JobKind {
     Explore,
     /// n-body fidelity check.
     Fidelity,
+    /// Continuous n-body trajectory (multiple shooting).
+    Continuous,
 }
 
 impl JobKind {
@@ -141,6 +149,7 @@ impl JobKind {
             JobKind::Optimize => "date optimiser",
             JobKind::Explore => "sequence explorer",
             JobKind::Fidelity => "n-body check",
+            JobKind::Continuous => "continuous n-body trajectory",
         }
     }
 }
@@ -158,6 +167,8 @@ pub enum JobRequest {
     Explore(ExploreSpec),
     /// Run the n-body fidelity check.
     Fidelity,
+    /// Solve for the continuous n-body trajectory.
+    Continuous,
 }
 
 /// Everything the workbench can be asked to do.

@@ -15,6 +15,19 @@ impl FidelityView {
     /// Draw the view.
     pub fn ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>) -> Actions {
         let mut out = Vec::new();
+        egui::ScrollArea::vertical()
+            .auto_shrink([false, false])
+            .show(ui, |ui| {
+                continuous_ui(ui, vc, &mut out);
+                ui.separator();
+                ui.label(RichText::new("Leg-by-leg check").strong());
+                self.check_ui(ui, vc, &mut out);
+            });
+        out
+    }
+
+    /// The leg-by-leg check (each leg from its patched-conic departure state).
+    fn check_ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         let running = vc.jobs.progress_of(JobKind::Fidelity);
         ui.horizontal(|ui| {
             let can = vc.tour.is_some() && vc.eval.complete && running.is_none();
@@ -49,7 +62,7 @@ impl FidelityView {
         );
         let Some(f) = vc.jobs.fidelity.as_ref() else {
             ui.label("Run the check to see how far the tour drifts under the planets' pull.");
-            return out;
+            return;
         };
         if f.revision != vc.revision {
             ui.label(
@@ -105,6 +118,121 @@ impl FidelityView {
             )
             .weak(),
         );
-        out
     }
+}
+
+/// The continuous trajectory: run it, its verdict, its encounters and impulses.
+fn continuous_ui(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
+    ui.label(RichText::new("Continuous n-body trajectory").strong());
+    let running = vc.jobs.progress_of(JobKind::Continuous);
+    ui.horizontal_wrapped(|ui| {
+        let can = vc.tour.is_some() && vc.eval.complete && running.is_none();
+        if ui
+            .add_enabled(can, egui::Button::new("Converge trajectory"))
+            .on_hover_text(
+                "Multiple shooting: one continuous trajectory through every swing-by under the \
+                 Sun and the planets (and the Moon, with a kernel) as point masses; periapsis \
+                 nodes at each stop, manoeuvres as impulses",
+            )
+            .clicked()
+        {
+            out.push(Action::StartJob(JobRequest::Continuous));
+        }
+        if let Some(p) = running {
+            ui.add(
+                egui::ProgressBar::new(p.fraction())
+                    .desired_width(160.0)
+                    .show_percentage(),
+            );
+            if ui.small_button("cancel").clicked() {
+                out.push(Action::CancelJobs(JobKind::Continuous));
+            }
+        }
+    });
+    let Some(c) = vc.jobs.continuous.as_ref() else {
+        ui.label(
+            "Converge the tour into one n-body trajectory to see the encounters, impulses and \
+             Δv it really takes.",
+        );
+        return;
+    };
+    if c.revision != vc.revision {
+        ui.label(
+            RichText::new("(for an earlier version of the design; run again to update)").weak(),
+        );
+    }
+    let c = &c.value;
+    let verdict = RichText::new(c.verdict());
+    ui.label(if c.converged {
+        verdict.color(super::style::nbody_color(ui.visuals().dark_mode))
+    } else {
+        verdict.color(ui.visuals().warn_fg_color)
+    });
+    for n in &c.notes {
+        ui.label(RichText::new(format!("Note: {n}.")).color(ui.visuals().warn_fg_color));
+    }
+    ui.label(
+        RichText::new(format!(
+            "Model: the Sun and {} as point masses; {}; GM values {}; ephemeris {}.",
+            c.model
+                .bodies
+                .iter()
+                .filter(|b| b.gm_km3_s2 > 0.0)
+                .map(|b| b.name.as_str())
+                .collect::<Vec<_>>()
+                .join(", "),
+            c.model.earth_moon,
+            c.model.gm_set,
+            c.model.ephemeris
+        ))
+        .weak(),
+    );
+    let km = |v: Option<f64>| v.map_or("—".to_string(), |x| format!("{x:.0}"));
+    egui::Grid::new("continuous")
+        .striped(true)
+        .num_columns(8)
+        .show(ui, |ui| {
+            for h in [
+                "stop",
+                "periapsis (UTC)",
+                "shift (h)",
+                "altitude (km)",
+                "designed (km)",
+                "B·T (km)",
+                "B·R (km)",
+                "v∞ (km/s)",
+            ] {
+                ui.label(RichText::new(h).strong());
+            }
+            ui.end_row();
+            for e in &c.encounters {
+                ui.label(format!("{} {} ({})", e.stop + 1, e.body, e.role));
+                ui.label(&e.epoch);
+                ui.label(format!("{:+.1}", e.epoch_shift_s / 3600.0));
+                ui.label(km(e.altitude_km));
+                ui.label(km(e.designed_altitude_km));
+                ui.label(km(e.b_t_km));
+                ui.label(km(e.b_r_km));
+                ui.label(format!("{:.3} ({:.3})", e.vinf_km_s, e.designed_vinf_km_s));
+                ui.end_row();
+            }
+        });
+    ui.add_space(4.0);
+    ui.label(format!(
+        "Launch C3 {:.3} km²/s² (patched conics {:.3}). Total Δv {:.3} km/s (patched conics {:.3}).",
+        c.launch_c3, c.designed_launch_c3, c.total_dv_km_s, c.designed_total_dv_km_s
+    ));
+    for i in &c.impulses {
+        ui.label(format!(
+            "• {}: {:.4} km/s on {} (patched conics {:.4})",
+            i.what, i.magnitude_km_s, i.epoch, i.designed_km_s
+        ));
+    }
+    ui.label(
+        RichText::new(
+            "Export it with File › Export › Continuous n-body trajectory (CCSDS OEM). \
+             Preliminary design only: confirm in high-fidelity tools.",
+        )
+        .weak(),
+    );
 }

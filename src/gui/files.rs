@@ -164,6 +164,22 @@ pub fn export_to(app: &mut TourwrightApp, purpose: PathPurpose, p: &Path) {
             }
             export::oem(tour, e, tourwright_astro::time::Epoch::now())
         }
+        PathPurpose::ContinuousOem => match app
+            .jobs
+            .continuous
+            .as_ref()
+            .filter(|c| c.revision == app.doc.revision())
+        {
+            Some(c) => export::continuous_oem(tour, &c.value, tourwright_astro::time::Epoch::now()),
+            None => {
+                app.dialogs.error = Some(
+                    "No continuous n-body trajectory for this version of the design: run it in the \
+                     Fidelity view first."
+                        .into(),
+                );
+                return;
+            }
+        },
         PathPurpose::Open | PathPurpose::SaveAs | PathPurpose::Picture | PathPurpose::Kernel => {
             return;
         }
@@ -195,7 +211,9 @@ pub fn ask_path(app: &mut TourwrightApp, purpose: PathPurpose) {
         PathPurpose::EventsCsv | PathPurpose::LedgerCsv | PathPurpose::SamplesCsv => {
             base.add_filter("CSV", &["csv"])
         }
-        PathPurpose::Oem => base.add_filter("CCSDS OEM", &["oem", "txt"]),
+        PathPurpose::Oem | PathPurpose::ContinuousOem => {
+            base.add_filter("CCSDS OEM", &["oem", "txt"])
+        }
         PathPurpose::Picture => base.add_filter("PNG picture", &["png"]),
         PathPurpose::Kernel => base.add_filter("SPICE SPK kernel", &["bsp"]),
     };
@@ -257,6 +275,7 @@ fn default_path(app: &TourwrightApp, purpose: PathPurpose) -> String {
         PathPurpose::LedgerCsv => format!("{stem}-ledger.csv"),
         PathPurpose::SamplesCsv => format!("{stem}-trajectory.csv"),
         PathPurpose::Oem => format!("{stem}.oem"),
+        PathPurpose::ContinuousOem => format!("{stem}-nbody.oem"),
         PathPurpose::Picture => format!(
             "{stem}-{}.png",
             app.settings.view.title().to_lowercase().replace(' ', "-")

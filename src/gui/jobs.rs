@@ -5,6 +5,7 @@
 
 use std::sync::Arc;
 
+use tourwright_mission::continuous::{self, Continuous, ContinuousOptions};
 use tourwright_mission::evaluate::{EvalOptions, evaluate};
 use tourwright_mission::fidelity::{self, Fidelity, FidelityOptions};
 use tourwright_mission::{MissionDesign, PreparedTour};
@@ -22,6 +23,7 @@ enum Handle {
     Optimize(Job<Result<SearchOutcome, String>>),
     Explore(Job<Exploration>),
     Fidelity(Job<Result<Fidelity, String>>),
+    Continuous(Job<Result<Continuous, String>>),
 }
 
 impl Handle {
@@ -32,6 +34,7 @@ impl Handle {
             Handle::Optimize(j) => &j.progress,
             Handle::Explore(j) => &j.progress,
             Handle::Fidelity(j) => &j.progress,
+            Handle::Continuous(j) => &j.progress,
         }
     }
 }
@@ -76,6 +79,8 @@ pub struct Jobs {
     pub exploration: Option<Exploration>,
     /// The latest n-body fidelity check.
     pub fidelity: Option<ForRevision<Fidelity>>,
+    /// The latest continuous n-body trajectory.
+    pub continuous: Option<ForRevision<Continuous>>,
     /// A window map waiting to be shown.
     pub window: Option<WindowMap>,
     /// Results dropped because they belonged to another document.
@@ -117,6 +122,7 @@ impl Jobs {
             JobRequest::Optimize(..) => JobKind::Optimize,
             JobRequest::Explore(_) => JobKind::Explore,
             JobRequest::Fidelity => JobKind::Fidelity,
+            JobRequest::Continuous => JobKind::Continuous,
         };
         self.cancel(kind);
         let d = design.clone();
@@ -154,6 +160,20 @@ impl Jobs {
                 })
                 .map_err(|e| e.to_string())
             })),
+            JobRequest::Continuous => Handle::Continuous(Job::spawn(label, move |p| {
+                let tour = PreparedTour::prepare(&d).map_err(|e| e.to_string())?;
+                let mut e = tourwright_mission::evaluate::Evaluation::default();
+                evaluate(&tour, &EvalOptions::default(), &mut e);
+                p.set_total(1000);
+                let done = |f: f64| {
+                    let now = (f.clamp(0.0, 1.0) * 1000.0) as u64;
+                    let was = (p.fraction() * 1000.0).round() as u64;
+                    p.add(now.saturating_sub(was));
+                };
+                let cancel = || p.is_cancelled();
+                continuous::solve(&tour, &e, &ContinuousOptions::default(), &done, &cancel)
+                    .map_err(|e| e.to_string())
+            })),
         };
         self.running.push(Running {
             kind,
@@ -181,6 +201,7 @@ impl Jobs {
         self.optimum = None;
         self.window = None;
         self.fidelity = None;
+        self.continuous = None;
     }
 
     /// Collect finished jobs. Results for another document generation are dropped.
@@ -251,6 +272,23 @@ impl Jobs {
                         Some(Ok(()))
                     }
                     JobStatus::Failed(m) => Some(Err(m)),
+                },
+                Handle::Continuous(j) => match j.poll() {
+                    JobStatus::Running => None,
+                    JobStatus::Done(Ok(c)) => {
+                        if current {
+                            out.push(Finished::Message(
+                                format!("continuous n-body trajectory: {}", c.verdict()),
+                                !c.converged,
+                            ));
+                            self.continuous = Some(ForRevision {
+                                value: c,
+                                revision: r.revision,
+                            });
+                        }
+                        Some(Ok(()))
+                    }
+                    JobStatus::Done(Err(m)) | JobStatus::Failed(m) => Some(Err(m)),
                 },
                 Handle::Fidelity(j) => match j.poll() {
                     JobStatus::Running => None,

@@ -63,6 +63,15 @@ pub fn fixed_opt(x: Option<f64>, p: usize) -> String {
 /// Sun colour.
 pub const SUN: Color32 = Color32::from_rgb(0xF2, 0xB1, 0x34);
 
+/// The converged continuous n-body trajectory (lines, legend and its verdict).
+pub fn nbody_color(dark: bool) -> Color32 {
+    if dark {
+        Color32::from_rgb(0x4F, 0xD1, 0xC5)
+    } else {
+        Color32::from_rgb(0x00, 0x7A, 0x70)
+    }
+}
+
 /// Text colour for warnings.
 pub fn warn_color(dark: bool) -> Color32 {
     if dark {

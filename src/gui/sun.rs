@@ -49,6 +49,8 @@ pub struct SunView {
     pub dsm_markers: Vec<(usize, Pos2)>,
     /// n-body arcs drawn last frame (for tests).
     pub nbody_arcs_drawn: usize,
+    /// Coast arcs of the continuous trajectory drawn last frame (for tests).
+    pub continuous_arcs_drawn: usize,
 }
 
 impl Default for SunView {
@@ -62,6 +64,7 @@ impl Default for SunView {
             dragging_dsm: None,
             dsm_markers: Vec::new(),
             nbody_arcs_drawn: 0,
+            continuous_arcs_drawn: 0,
         }
     }
 }
@@ -284,6 +287,37 @@ impl SunView {
                 ));
                 self.nbody_arcs_drawn += 1;
             }
+        }
+        // The continuous n-body trajectory, when it belongs to this revision, with a legend.
+        self.continuous_arcs_drawn = 0;
+        if let Some(c) = vc
+            .jobs
+            .continuous
+            .as_ref()
+            .filter(|c| c.revision == vc.revision)
+        {
+            let color = style::nbody_color(dark);
+            for arc in &c.value.arcs {
+                let line: Vec<Pos2> = arc
+                    .states
+                    .iter()
+                    .map(|(_, s)| to_screen(s.r.x / AU_KM, s.r.y / AU_KM))
+                    .collect();
+                painter.add(Shape::line(line, Stroke::new(1.2, color)));
+                self.continuous_arcs_drawn += 1;
+            }
+            let words = if c.value.converged {
+                "— continuous n-body trajectory (converged)"
+            } else {
+                "— continuous n-body trajectory (NOT converged)"
+            };
+            painter.text(
+                rect.right_bottom() + egui::vec2(-8.0, -8.0),
+                egui::Align2::RIGHT_BOTTOM,
+                words,
+                egui::FontId::proportional(12.0),
+                color,
+            );
         }
         // Deep-space manoeuvres: markers, the track a dragged one moves along, the drag itself.
         self.dsm_markers.clear();

@@ -31,6 +31,7 @@ pub const VERSION: &str = env!("CARGO_PKG_VERSION");
 
 /// The caution shown in the README, the CLI and the program's help.
 pub const CAUTION: &str = "Preliminary design only: patched conics and impulsive manoeuvres; the \
-n-body check is a first step, not a high-fidelity propagation. Confirm every figure in \
+continuous n-body trajectory is point masses only (no solar pressure, no oblateness, no finite \
+burns) and does not converge on every tour. Confirm every figure in \
 high-fidelity, independently verified tools before any commitment; flight operations follow the \
 responsible agency's rules and licensed practice.";
