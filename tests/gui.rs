@@ -208,7 +208,7 @@ fn every_file_edit_and_view_menu_entry_works() {
         ("Event table", "e.csv", "stop,kind,body"),
         ("Ledger (CSV)", "l.csv", "item,body"),
         ("Trajectory samples", "s.csv", "leg,piece,epoch_utc"),
-        ("CCSDS OEM", "t.oem", "CCSDS_OEM_VERS"),
+        ("Trajectory (CCSDS OEM)", "t.oem", "CCSDS_OEM_VERS"),
     ] {
         h.get_by_label("File").click();
         h.run_steps(2);
