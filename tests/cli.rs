@@ -964,11 +964,14 @@ fn continuous_fidelity_reports_the_model_and_writes_an_oem_per_coast_arc() {
 
 #[test]
 fn continuous_fidelity_says_where_it_does_not_converge_with_exit_status_3() {
-    let out = bin()
-        .args(["fidelity", "--continuous", "--quiet"])
-        .arg(sample("ember-mercury-evvme.tour.ron"))
-        .output()
-        .unwrap();
+    let out =
+        bin()
+            .args(["fidelity", "--continuous", "--quiet"])
+            .arg(std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join(
+                "crates/tourwright-mission/tests/fixtures/ember-hidden-venus-encounter.tour.ron",
+            ))
+            .output()
+            .unwrap();
     assert_eq!(out.status.code(), Some(3));
     let text = String::from_utf8(out.stdout).unwrap();
     assert!(

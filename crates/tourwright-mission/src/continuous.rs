@@ -487,6 +487,95 @@ fn cuts(a: f64, b: f64) -> Vec<f64> {
     (1..m).map(|j| a + (b - a) * j as f64 / m as f64).collect()
 }
 
+/// The guess of a ballistic leg flown in the full model from node `a` (unpowered, its variables
+/// in `z`): the states at the patch epochs `bounds`, and, when the arc ends inside node `b`'s
+/// sphere of influence on an approach, `b`'s periapsis variables (ρ, w, epoch shift).
+fn fly_ballistic_guess(
+    tour: &PreparedTour,
+    a: &Node,
+    b: &Node,
+    z: &[f64],
+    bounds: &[f64],
+    model: &Model<'_>,
+    opts: &ContinuousOptions,
+) -> Option<(Vec<State>, Option<[f64; 7]>)> {
+    if !(a.hyperbola && !a.powered) {
+        return None;
+    }
+    let ta = a.t0 + z[a.t_index()];
+    let body_a = tour.stops[a.stop].body.state(Tdb(ta)).ok()?;
+    let mut s = State {
+        r: body_a.r + Vec3::new(z[a.off], z[a.off + 1], z[a.off + 2]),
+        v: body_a.v + Vec3::new(z[a.off + 3], z[a.off + 4], z[a.off + 5]),
+    };
+    let step = NBodyOptions {
+        samples: 2,
+        ..opts.integration
+    };
+    let mut t = ta;
+    let mut states = Vec::with_capacity(bounds.len());
+    for &tb in bounds.iter().chain(std::iter::once(&b.t0)) {
+        s = nbody::propagate(
+            &s,
+            Tdb(t),
+            Tdb(tb),
+            model.mu_sun,
+            &model.bodies,
+            &step,
+            &|| false,
+        )
+        .ok()?
+        .end;
+        t = tb;
+        states.push(s);
+    }
+    let arrival = states.pop()?;
+    let next = (|| {
+        if !b.hyperbola {
+            return None;
+        }
+        let body = &tour.stops[b.stop].body;
+        let bs = body.state(Tdb(b.t0)).ok()?;
+        let (r, v) = (arrival.r - bs.r, arrival.v - bs.v);
+        if r.norm() > body.data.soi_km || r.dot(&v) >= 0.0 {
+            return None;
+        }
+        periapsis_of(&r, &v, b.mu, b.rp_min)
+    })();
+    Some((states, next))
+}
+
+/// The periapsis of the osculating hyperbola through (r, v) relative to a body of `mu`, before
+/// or after: (ρ, w, time from now to periapsis) with ρ at least `rp_floor` (same energy).
+fn periapsis_of(r: &Vec3, v: &Vec3, mu: f64, rp_floor: f64) -> Option<[f64; 7]> {
+    let rn = r.norm();
+    let energy = 0.5 * v.norm_squared() - mu / rn;
+    if !(energy > 0.0 && mu > 0.0) {
+        return None;
+    }
+    let h = r.cross(v);
+    let e_vec = ((v.norm_squared() - mu / rn) * r - r.dot(v) * v) / mu;
+    let e = e_vec.norm();
+    if !(e > 1.0) {
+        return None;
+    }
+    let p = h.norm_squared() / mu;
+    let rp = p / (1.0 + e);
+    let a = mu / (2.0 * energy);
+    let cosh_f = (1.0 + rn / a) / e;
+    let f = cosh_f.max(1.0).acosh() * r.dot(v).signum();
+    let n = (mu / (a * a * a)).sqrt();
+    let dt = -(e * f.sinh() - f) / n;
+    let p_hat = e_vec / e;
+    let q_hat = h.normalize().cross(&p_hat);
+    let rp = rp.max(rp_floor);
+    let vp = (2.0 * energy + 2.0 * mu / rp).sqrt();
+    let rho = rp * p_hat;
+    let w = vp * q_hat;
+    let out = [rho.x, rho.y, rho.z, w.x, w.y, w.z, dt];
+    out.iter().all(|x| x.is_finite()).then_some(out)
+}
+
 /// Periapsis state of a hyperbola with incoming and outgoing asymptote directions `s_in`,
 /// `s_out`, periapsis radius `rp` and incoming periapsis speed `vp`.
 fn periapsis_guess(s_in: &Vec3, s_out: &Vec3, rp: f64, vp: f64) -> (Vec3, Vec3) {
@@ -646,9 +735,32 @@ impl<'a> Problem<'a> {
                 }
                 None => bounds.extend(cuts(ta, tb)),
             }
-            // Patch states: the patched-conic leg, flown under the Sun alone.
+            // A ballistic leg after a shaped swing-by: fly it from the swing-by's periapsis in
+            // the full model and start from that arc (patch states, and the next node at the
+            // periapsis of the osculating approach), so that the leg is continuous from the first
+            // iteration. A resonant return needs it: its arrival B-plane is set by the departure.
+            let flown = if e.legs[k].ballistic && dsm.is_none() {
+                fly_ballistic_guess(tour, &nodes[k], &nodes[k + 1], &z, &bounds, model, opts)
+            } else {
+                None
+            };
+            if let Some((_, Some(next))) = &flown {
+                let n = &nodes[k + 1];
+                z[n.off..n.off + 6].copy_from_slice(&next[..6]);
+                z[n.t_index()] = next[6].clamp(-n.tol_s, n.tol_s);
+            }
+            // Patch states: the patched-conic leg, flown under the Sun alone (or the arc above).
             let mut ends = vec![End::Node(k)];
-            for &t in &bounds {
+            for (j, &t) in bounds.iter().enumerate() {
+                if let Some((states, _)) = &flown {
+                    let st = states[j];
+                    let off = z.len();
+                    z.extend_from_slice(&[st.r.x, st.r.y, st.r.z, st.v.x, st.v.y, st.v.z]);
+                    scales.extend_from_slice(&[1000.0, 1000.0, 1000.0, 1e-3, 1e-3, 1e-3]);
+                    patches.push(Patch { t, off });
+                    ends.push(End::Patch(patches.len() - 1));
+                    continue;
+                }
                 let (t0, s0) = match dsm {
                     Some(m) if t > m.t.0 => (
                         m.t.0,
@@ -1464,8 +1576,9 @@ pub fn solve(
             for &(i, _) in &held {
                 let n = &s.p.nodes[i];
                 notes.push(format!(
-                    "the designed altitude of the swing-by at {} could not be held; it was freed (at least the minimum altitude)",
-                    tour.stops[n.stop].body.name
+                    "the designed altitude of the swing-by at {} (stop {}) could not be held; it was freed (at least the minimum altitude)",
+                    tour.stops[n.stop].body.name,
+                    n.stop + 1
                 ));
             }
             (done, stages, failure, z) = again;
