@@ -499,7 +499,7 @@ fn fly_ballistic_guess(
     model: &Model<'_>,
     opts: &ContinuousOptions,
 ) -> Option<(Vec<State>, Option<[f64; 7]>)> {
-    if !(a.hyperbola && !a.powered) {
+    if !a.hyperbola || a.powered {
         return None;
     }
     let ta = a.t0 + z[a.t_index()];
