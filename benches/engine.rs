@@ -164,5 +164,38 @@ fn benches(c: &mut Criterion) {
     g.finish();
 }
 
-criterion_group!(engine, benches);
+/// The continuous n-body trajectory of Lantern and Tern, on mean elements and (when
+/// TOURWRIGHT_DE421 names it) on the DE421 kernel with the Moon. The goal: 30 s each.
+fn continuous(c: &mut Criterion) {
+    use tourwright_mission::continuous::{ContinuousOptions, solve};
+    use tourwright_mission::design::{EphemerisChoice, KernelRef};
+    let mut g = c.benchmark_group("continuous");
+    g.sample_size(10);
+    let kernel = std::env::var_os("TOURWRIGHT_DE421");
+    for name in ["lantern-jupiter-evej", "tern-saturn-ejs"] {
+        let mut models = vec![("mean", None)];
+        if let Some(k) = &kernel {
+            models.push(("de421", Some(k.to_string_lossy().to_string())));
+        }
+        for (label, k) in models {
+            let mut d = sample(&format!("{name}.tour.ron"));
+            if let Some(path) = k {
+                d.ephemeris = EphemerisChoice::Kernel(KernelRef { path, base: None });
+            }
+            let tour = PreparedTour::prepare(&d).unwrap();
+            let mut e = Evaluation::default();
+            evaluate(&tour, &EvalOptions::default(), &mut e);
+            g.bench_function(format!("{name}_{label}"), |b| {
+                b.iter(|| {
+                    let r = solve(&tour, &e, &ContinuousOptions::default(), &|_| {}, &|| false);
+                    assert!(r.as_ref().is_ok_and(|c| c.converged));
+                    black_box(r)
+                })
+            });
+        }
+    }
+    g.finish();
+}
+
+criterion_group!(engine, benches, continuous);
 criterion_main!(engine);

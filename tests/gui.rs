@@ -703,6 +703,58 @@ fn fidelity_check_runs_from_its_tab_and_draws_the_arcs() {
     assert_eq!(h.state().views.sun.nbody_arcs_drawn, legs);
 }
 
+/// The continuous n-body trajectory from the Fidelity tab: the button starts a job, the verdict
+/// and the encounters show, the Sun view draws its coast arcs with a legend, the Swing-by lens
+/// shows the n-body periapsis, and File › Export writes its OEM.
+#[test]
+fn continuous_trajectory_runs_from_the_fidelity_tab_and_reaches_every_view() {
+    let mut h = harness(0);
+    h.get_by_label("Fidelity").click();
+    h.run_steps(3);
+    h.get_by_label("Converge trajectory").click();
+    h.run_steps(2);
+    let t = std::time::Instant::now();
+    while h.state().jobs.continuous.is_none() && t.elapsed().as_secs() < 120 {
+        h.step();
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    let c = &h
+        .state()
+        .jobs
+        .continuous
+        .as_ref()
+        .expect("the solve finished")
+        .value;
+    assert!(c.converged, "{}", c.verdict());
+    let arcs = c.arcs.len();
+    assert_eq!(c.encounters.len(), h.state().design().stops.len());
+    h.run_steps(2);
+    h.get_by_label("Copy report");
+    h.get_by_label("Sun view").click();
+    h.run_steps(3);
+    assert_eq!(h.state().views.sun.continuous_arcs_drawn, arcs);
+    h.get_by_label("Swing-by lens").click();
+    h.run_steps(3);
+    h.get_by_label("n-body altitude");
+    // File › Export › the converged trajectory, through the typed-path prompt.
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("nbody.oem");
+    h.get_by_label("File").click();
+    h.run_steps(2);
+    h.get_by_label("Export").click();
+    h.run_steps(2);
+    h.get_by_label_contains("Continuous n-body trajectory")
+        .click();
+    h.run_steps(2);
+    h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 = target.to_string_lossy().to_string();
+    h.run_steps(1);
+    h.get_by_label("OK").click();
+    h.run_steps(3);
+    let text = std::fs::read_to_string(&target).unwrap();
+    assert!(text.starts_with("CCSDS_OEM_VERS"));
+    assert_eq!(text.matches("META_START").count(), arcs);
+}
+
 /// Choosing a kernel that cannot be used (here: not an SPK file, typed into the path prompt)
 /// leaves the design as it was and says why.
 #[test]

@@ -162,6 +162,15 @@ fn continuous_ui(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         );
     }
     let c = &c.value;
+    if ui
+        .small_button("Copy report")
+        .on_hover_text("The continuous trajectory's report as text (as the command line prints it)")
+        .clicked()
+    {
+        let name = vc.design.name.clone();
+        ui.ctx()
+            .copy_text(tourwright_mission::continuous::summary_text(&name, c, 0.0));
+    }
     let verdict = RichText::new(c.verdict());
     ui.label(if c.converged {
         verdict.color(super::style::nbody_color(ui.visuals().dark_mode))

@@ -383,6 +383,30 @@ fn lens_figures(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize) {
                     f(sw.min_altitude_km, 0)
                 ),
             );
+            // The converged continuous n-body trajectory's periapsis here, beside the design's.
+            if let Some(enc) = vc
+                .jobs
+                .continuous
+                .as_ref()
+                .filter(|c| c.revision == vc.revision && c.value.converged)
+                .and_then(|c| c.value.encounters.iter().find(|en| en.stop == k))
+            {
+                row(
+                    "n-body altitude",
+                    "periapsis altitude of the converged continuous n-body trajectory (Fidelity \
+                     view), and its epoch against the design's",
+                    format!(
+                        "{} km, {:+.1} h",
+                        fo(enc.altitude_km, 0),
+                        enc.epoch_shift_s / 3600.0
+                    ),
+                );
+                row(
+                    "n-body B·T / B·R",
+                    "B-plane of the converged trajectory's osculating approach",
+                    format!("{} / {} km", fo(enc.b_t_km, 0), fo(enc.b_r_km, 0)),
+                );
+            }
             row(
                 "turn angle",
                 "angle between v∞ in and v∞ out",
