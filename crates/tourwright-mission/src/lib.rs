@@ -30,8 +30,8 @@ pub use tour::{Body, Catalog, PreparedTour};
 pub const VERSION: &str = env!("CARGO_PKG_VERSION");
 
 /// The caution shown in the README, the CLI and the program's help.
-pub const CAUTION: &str = "Preliminary design only: patched conics and impulsive manoeuvres; the \
-continuous n-body trajectory is point masses only (no solar pressure, no oblateness, no finite \
-burns) and does not converge on every tour. Confirm every figure in \
-high-fidelity, independently verified tools before any commitment; flight operations follow the \
-responsible agency's rules and licensed practice.";
+pub const CAUTION: &str = "Preliminary design only: patched conics and impulsive manoeuvres, \
+converged into one continuous n-body trajectory through every swing-by on request (point masses \
+only: no solar pressure, no oblateness, no finite burns; a tour that does not converge is \
+reported as such). Confirm every figure in high-fidelity, independently verified tools before \
+any commitment; flight operations follow the responsible agency's rules and licensed practice.";
