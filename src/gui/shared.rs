@@ -38,9 +38,9 @@ pub fn retarget_row(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Act
         .and_then(|s| s.miss_km);
     ui.horizontal_wrapped(|ui| {
         if let Some(m) = miss {
-            let next = vc.tour.and_then(|t| t.stops.get(k + 1));
+            let tol = vc.tour.and_then(|t| t.stops.get(k)).map(|s| s.max_miss_km);
             let txt = format!("misses the next body by {} km", style::fixed(m, 0));
-            if next.is_some_and(|n| rules::misses(m, &n.body.data)) {
+            if tol.is_some_and(|t| rules::misses(m, t)) {
                 ui.label(RichText::new(format!("! {txt}")).color(style::warn_color(vc.dark)));
             } else {
                 ui.label(txt);

@@ -292,6 +292,10 @@ pub struct SwingbySettings {
     /// [`crate::rules::default_max_altitude_km`] when absent.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max_altitude_km: Option<f64>,
+    /// Largest miss of the next body the ballistic leg after a shaped swing-by may have, km;
+    /// [`crate::rules::DEFAULT_MAX_MISS_KM`] when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub max_miss_km: Option<f64>,
     /// Targeted or shaped.
     #[serde(default)]
     pub mode: SwingbyMode,

@@ -205,6 +205,9 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
         if let Some(v) = sw.min_vinf_km_s {
             in_range(format!("stops[{k}].swingby.min_vinf_km_s"), v, 0.0, 100.0)?;
         }
+        if let Some(m) = sw.max_miss_km {
+            in_range(format!("stops[{k}].swingby.max_miss_km"), m, 1e-3, 1e8)?;
+        }
         if let Some(v) = sw.max_powered_dv_km_s {
             in_range(
                 format!("stops[{k}].swingby.max_powered_dv_km_s"),

@@ -15,7 +15,6 @@ use tourwright_astro::{State, Vec3};
 use crate::design::{MissionDesign, SwingbyMode};
 use crate::evaluate::legs::{ballistic_arrival, shaped_vinf_out};
 use crate::evaluate::{EvalOptions, Evaluation, evaluate};
-use crate::rules;
 use crate::tour::{Body, PreparedTour};
 
 /// Why a retarget failed.
@@ -98,7 +97,7 @@ pub fn retarget(
         false,
     )
     .ok_or(RetargetError::NoConvergence(f64::INFINITY))?;
-    if cur.norm() > rules::retarget_tolerance_km(&next.data) {
+    if cur.norm() > tour.stops[k].max_miss_km {
         return Err(RetargetError::NoConvergence(cur.norm()));
     }
     let mut out = d.clone();

@@ -1,8 +1,6 @@
 //! The rules every part of the program applies the same way: when an altitude counts as below
 //! its minimum, when a ballistic leg misses its next body, which numbers are shown at all.
 
-use tourwright_astro::bodies::BodyData;
-
 /// Default smallest v∞ of a swing-by, km/s (common practice for patched-conic concept work):
 /// below about 1 km/s the spacecraft spends weeks inside the planet's sphere of influence (Earth's
 /// is about 925 000 km across), the "instantaneous swing-by" of patched conics no longer holds, and
@@ -27,9 +25,14 @@ pub const SPEED_TOLERANCE_KM_S: f64 = 1e-6;
 /// microsecond: the rounding of epochs written to a file).
 pub const TOF_TOLERANCE_DAYS: f64 = 1e-6 / 86_400.0;
 
-/// The smallest "sphere" a ballistic leg must reach at its next body, km: bodies without a
-/// sphere of influence (massless user bodies) still need a finite target.
-pub const MIN_ARRIVAL_SPHERE_KM: f64 = 1.0e4;
+/// Default largest miss of the next body a shaped swing-by's ballistic leg may have, km. Ours,
+/// justified: patched conics place the next swing-by at the body's centre, and a miss shifts its
+/// B-vector by up to the miss; 1 000 km is a tenth of a terrestrial-planet swing-by's |B| (about
+/// 10 000 km at a few km/s), so the swing-by the design shows is the one that happens, and it is
+/// the accuracy to which the searches close a ballistic return. It is far below any planet's
+/// sphere of influence (Mercury's is 112 000 km), which the program used before and which let a
+/// 28 000 km miss read as "no warnings".
+pub const DEFAULT_MAX_MISS_KM: f64 = 1_000.0;
 
 /// True when `altitude_km` is below `min_km` by more than the tolerance.
 #[inline]
@@ -37,24 +40,11 @@ pub fn below_minimum(altitude_km: f64, min_km: f64) -> bool {
     altitude_km < min_km - ALTITUDE_TOLERANCE_KM
 }
 
-/// How far from the next body a ballistic leg may end and still count as meeting it, km: the
-/// body's sphere of influence (Laplace), at least [`MIN_ARRIVAL_SPHERE_KM`].
+/// True when a ballistic leg ends farther than `tolerance_km` from its next body (the shaped
+/// swing-by's `max_miss_km`).
 #[inline]
-pub fn arrival_sphere_km(next: &BodyData) -> f64 {
-    next.soi_km.max(MIN_ARRIVAL_SPHERE_KM)
-}
-
-/// True when a ballistic leg ends outside the next body's arrival sphere.
-#[inline]
-pub fn misses(miss_km: f64, next: &BodyData) -> bool {
-    !(miss_km <= arrival_sphere_km(next))
-}
-
-/// What a retarget must achieve to count as a success, km: inside the arrival sphere and within
-/// 100 000 km (a swing-by at the giants needs more precision than their huge spheres suggest).
-#[inline]
-pub fn retarget_tolerance_km(next: &BodyData) -> f64 {
-    arrival_sphere_km(next).min(1.0e5)
+pub fn misses(miss_km: f64, tolerance_km: f64) -> bool {
+    !(miss_km <= tolerance_km)
 }
 
 /// A number fit to show: finite and not absurdly large. Anything else is shown as absent.

@@ -243,6 +243,8 @@ pub struct TourStop {
     pub max_powered_dv_km_s: f64,
     /// Largest periapsis altitude a search may give a shaped swing-by here, km.
     pub max_altitude_km: f64,
+    /// Largest miss of the next body the ballistic leg after this shaped swing-by may have, km.
+    pub max_miss_km: f64,
 }
 
 /// Lambert options of one leg, and its deep-space manoeuvre.
@@ -367,6 +369,10 @@ impl PreparedTour {
                     .swingby
                     .max_altitude_km
                     .unwrap_or(crate::rules::default_max_altitude_km(body.data.radius_km)),
+                max_miss_km: s
+                    .swingby
+                    .max_miss_km
+                    .unwrap_or(crate::rules::DEFAULT_MAX_MISS_KM),
                 body,
             });
         }
@@ -417,6 +423,7 @@ impl PreparedTour {
             min_vinf_km_s: crate::rules::DEFAULT_MIN_VINF_KM_S,
             max_powered_dv_km_s: crate::rules::DEFAULT_MAX_POWERED_DV_KM_S,
             max_altitude_km: crate::rules::default_max_altitude_km(body.data.radius_km),
+            max_miss_km: crate::rules::DEFAULT_MAX_MISS_KM,
             body,
             kind,
             t,

@@ -159,11 +159,11 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
             sw.miss_km = rules::shown(miss);
             sw.closest_approach = closest;
         }
-        if rules::misses(miss, &b.body.data) {
+        if rules::misses(miss, a.max_miss_km) {
             out.warnings.push(Warning::MissesNextBody {
                 stop: k,
                 miss_km: miss,
-                tolerance_km: rules::arrival_sphere_km(&b.body.data),
+                tolerance_km: a.max_miss_km,
             });
         }
     }

@@ -659,7 +659,10 @@ impl Problem {
                 Constraint::MaxC3(max) => (e.launch.c3 - max) / max.max(1.0),
                 Constraint::MaxTof(max) => (e.total_tof_days() - max) / max.max(1.0),
                 Constraint::Miss { stop } => match e.stops[stop].swingby.and_then(|s| s.miss_km) {
-                    Some(m) => (m - SEARCH_MISS_KM) / SEARCH_MISS_KM,
+                    Some(m) => {
+                        let tol = self.tour.stops[stop].max_miss_km.min(SEARCH_MISS_KM);
+                        (m - tol) / tol
+                    }
                     None => 1e3,
                 },
                 Constraint::DlaBand(lo, hi) => {
@@ -794,7 +797,7 @@ impl Problem {
                 e.stops[r.stop]
                     .swingby
                     .and_then(|s| s.miss_km)
-                    .is_some_and(|m| m <= SEARCH_MISS_KM)
+                    .is_some_and(|m| m <= self.tour.stops[r.stop].max_miss_km.min(SEARCH_MISS_KM))
             })
     }
 
