@@ -492,7 +492,7 @@ impl TourwrightApp {
                 menus::menu_bar(ui, settings, can_undo, can_redo, &mut actions)
             });
             egui::Panel::bottom("status").show(ui, |ui| {
-                status::status_bar(ui, &vc, self.status.as_ref(), self.frame_ms, &mut actions)
+                status::status_bar(ui, &vc, self.status.as_ref(), &mut actions)
             });
             if settings.show_ledger {
                 egui::Panel::bottom("ledger")

@@ -257,12 +257,28 @@ fn default_path(app: &TourwrightApp, purpose: PathPurpose) -> String {
             }
         })
         .collect();
+    let samples = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-missions");
+    let home = || {
+        std::env::var_os("HOME")
+            .map(PathBuf::from)
+            .filter(|h| h.is_dir())
+            .unwrap_or_else(|| PathBuf::from("."))
+    };
+    // Never into the program's own samples folder: a design saved or exported from a sample goes
+    // to the user's home folder instead.
     let dir = app
         .doc
         .path
         .as_ref()
         .and_then(|p| p.parent().map(Path::to_path_buf))
-        .unwrap_or_else(|| PathBuf::from("."));
+        .filter(|d| {
+            let same = |a: &Path, b: &Path| match (a.canonicalize(), b.canonicalize()) {
+                (Ok(x), Ok(y)) => x == y,
+                _ => a == b,
+            };
+            !same(d, &samples)
+        })
+        .unwrap_or_else(home);
     let file = match purpose {
         PathPurpose::Open => return dir.to_string_lossy().to_string() + "/",
         PathPurpose::Kernel => {

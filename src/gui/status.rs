@@ -12,7 +12,6 @@ pub fn status_bar(
     ui: &mut egui::Ui,
     vc: &ViewCtx<'_>,
     status: Option<&(String, bool)>,
-    frame_ms: f32,
     out: &mut Actions,
 ) {
     ui.horizontal(|ui| {
@@ -38,7 +37,6 @@ pub fn status_bar(
             });
         }
         ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
-            ui.label(RichText::new(format!("frame {frame_ms:.1} ms")).weak());
             if let Some(t) = vc.tour {
                 ui.label(RichText::new(format!("ephemeris: {}", t.ephemeris_name)).weak());
             }

@@ -371,7 +371,7 @@ impl Edit {
                     }
                     None => t.plus_days(200.0),
                 };
-                let body = d.stops[k].body.clone();
+                let body = inserted_body(&d.stops[k].body, d.stops.get(k + 1).map(|s| &*s.body));
                 d.stops.insert(
                     k + 1,
                     Stop {
@@ -622,6 +622,33 @@ fn split_leg_bounds(d: &mut MissionDesign, k: usize) {
     }
 }
 
+/// The body a new stop after `before` (and before `after`, when there is one) gets: the catalogue
+/// planet whose orbit is nearest the middle of its neighbours' (the geometric mean of their
+/// semi-major axes), never the body of either neighbour — a copy of the same body would make a
+/// zero-length return. Among Venus, Earth, Mars and Jupiter, the usual swing-by bodies.
+fn inserted_body(before: &str, after: Option<&str>) -> String {
+    use tourwright_astro::bodies::Planet;
+    use tourwright_astro::ephemeris::MeanElements;
+    let a_of = |name: &str| Planet::from_name(name).map(|p| MeanElements::of(p).a_km());
+    let target = match (a_of(before), after.and_then(a_of)) {
+        (Some(x), Some(y)) => (x * y).sqrt(),
+        (Some(x), None) | (None, Some(x)) => x,
+        (None, None) => MeanElements::of(Planet::Earth).a_km(),
+    };
+    let same = |p: Planet| {
+        p.name().eq_ignore_ascii_case(before)
+            || after.is_some_and(|a| p.name().eq_ignore_ascii_case(a))
+    };
+    [Planet::Venus, Planet::Earth, Planet::Mars, Planet::Jupiter]
+        .into_iter()
+        .filter(|&p| !same(p))
+        .min_by(|&p, &q| {
+            let d = |p: Planet| (MeanElements::of(p).a_km() / target).ln().abs();
+            d(p).total_cmp(&d(q))
+        })
+        .map_or_else(|| before.to_string(), |p| p.name().to_string())
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -630,6 +657,21 @@ mod tests {
         let mut d = MissionDesign::new_blank();
         Edit::InsertStopAfter(0).apply(&mut d).unwrap();
         d
+    }
+
+    #[test]
+    fn an_inserted_stop_is_never_a_copy_of_its_neighbours() {
+        // Earth to Jupiter: the new swing-by body sits between them (Mars); after the arrival,
+        // something other than Jupiter; between Earth and Venus, neither of them.
+        assert_eq!(inserted_body("Earth", Some("Jupiter")), "Mars");
+        assert_ne!(inserted_body("Jupiter", None), "Jupiter");
+        let b = inserted_body("Earth", Some("Venus"));
+        assert!(b != "Earth" && b != "Venus", "{b}");
+        // And the design that results evaluates with every leg solved.
+        let mut d = MissionDesign::new_blank();
+        Edit::InsertStopAfter(0).apply(&mut d).unwrap();
+        assert_ne!(d.stops[1].body, d.stops[0].body);
+        assert_ne!(d.stops[1].body, d.stops[2].body);
     }
 
     #[test]
