@@ -975,7 +975,7 @@ fn continuous_fidelity_says_where_it_does_not_converge_with_exit_status_3() {
     assert_eq!(out.status.code(), Some(3));
     let text = String::from_utf8(out.stdout).unwrap();
     assert!(
-        text.contains("Not converged") && text.contains("Venus → Venus"),
+        text.contains("Not converged") && text.contains("Venus to Venus"),
         "{text}"
     );
 }

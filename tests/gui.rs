@@ -526,6 +526,62 @@ fn window_map_click_sets_the_leg_dates_as_one_undo_step() {
     assert_eq!(h.state().design().stops[1].epoch, b);
 }
 
+/// A map computed for a leg goes stale when that leg's bodies change: it says so, and a click on
+/// it sets no dates.
+#[test]
+fn a_window_map_for_other_bodies_says_it_is_stale_and_sets_nothing() {
+    use tourwright::search::Progress;
+    use tourwright::search::window::{self, SecondAxis, WindowSpec};
+    let mut h = harness(1);
+    h.get_by_label("Window map").click();
+    h.run_steps(2);
+    let d = h.state().design().clone();
+    let (a, b) = (d.stops[0].epoch, d.stops[1].epoch);
+    let spec = WindowSpec {
+        from: d.stops[0].body.clone(),
+        to: d.stops[1].body.clone(),
+        depart: (a.plus_days(-20.0), a.plus_days(20.0)),
+        second: SecondAxis::Arrival(b.plus_days(-30.0), b.plus_days(30.0)),
+        nx: 9,
+        ny: 9,
+        leg: Default::default(),
+        goal: d.arrival,
+    };
+    let map = window::compute(&d, &spec, &Progress::new()).unwrap();
+    h.state_mut().views.window.leg = Some(0);
+    h.state_mut().views.window.map = Some(std::sync::Arc::new(map.clone()));
+    h.run_steps(2);
+    assert!(h.query_by_label_contains("Stale").is_none());
+    // The leg's arrival body changes: the map is stale.
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::SetBody {
+            stop: 1,
+            body: "Mars".into(),
+        }));
+    h.run_steps(3);
+    h.get_by_label_contains("Stale: this map is for");
+    let before = h.state().design().clone();
+    let action = {
+        let app = h.state();
+        let vc = tourwright::gui::app::ViewCtx {
+            design: app.design(),
+            tour: app.tour.as_ref(),
+            eval: &app.eval,
+            events: &app.events,
+            selected: app.selected,
+            dark: true,
+            revision: app.doc.revision(),
+            generation: app.doc.generation(),
+            in_gesture: false,
+            jobs: &app.jobs,
+        };
+        app.views.window.click(&vc, &map, 2, 7)
+    };
+    h.state_mut().apply(action);
+    h.run_steps(2);
+    assert_eq!(*h.state().design(), before);
+}
+
 #[test]
 fn sun_view_orbits_are_not_rebuilt_while_a_swingby_is_dragged() {
     let mut h = harness(0);

@@ -406,6 +406,26 @@ impl WindowView {
         let q = self.quantity;
         // Shared, not copied: the map can hold a million cells.
         let map = self.map.clone().expect("checked");
+        // A map for another pair of bodies than the chosen leg's is stale: say so (its clicks
+        // set nothing; see `click`).
+        if let Some(k) = self.leg {
+            let d = vc.design;
+            let fits = k + 1 < d.stops.len()
+                && d.stops[k].body.eq_ignore_ascii_case(&map.spec.from)
+                && d.stops[k + 1].body.eq_ignore_ascii_case(&map.spec.to);
+            if !fits {
+                ui.label(
+                    RichText::new(format!(
+                        "! Stale: this map is for {} to {}, not for leg {} of the design as it is \
+                         now. Compute it again; clicks on it set no dates.",
+                        map.spec.from,
+                        map.spec.to,
+                        k + 1
+                    ))
+                    .color(style::warn_color(dark)),
+                );
+            }
+        }
         let (nx, ny) = (map.spec.nx, map.spec.ny);
         let id = self.map_id;
         // Colour range from the minimum to a cap; the percentiles are computed once per map and

@@ -1268,7 +1268,7 @@ impl Solver<'_, '_> {
         let tour = self.p.tour;
         let leg_words = |k: usize| {
             format!(
-                "leg {} ({} → {})",
+                "leg {} ({} to {})",
                 k + 1,
                 tour.stops[k].body.name,
                 tour.stops[k + 1].body.name
@@ -1612,7 +1612,7 @@ pub fn solve(
                 converged: false,
                 notes: Vec::new(),
                 failure: Some(format!(
-                    "leg {} ({} → {}) cannot be flown: {err}",
+                    "leg {} ({} to {}) cannot be flown: {err}",
                     k + 1,
                     tour.stops[k].body.name,
                     tour.stops[k + 1].body.name
