@@ -526,6 +526,37 @@ fn window_map_click_sets_the_leg_dates_as_one_undo_step() {
     assert_eq!(h.state().design().stops[1].epoch, b);
 }
 
+/// A continuous solve that does not converge is shown in words (Fidelity view, Sun view legend)
+/// without a glyph the workbench's font lacks.
+#[test]
+fn a_continuous_trajectory_that_does_not_converge_is_shown_in_words() {
+    use tourwright::mission::continuous::{ContinuousOptions, solve};
+    use tourwright::mission::evaluate::{EvalOptions, Evaluation, evaluate};
+    let mut h = harness(0);
+    // Lantern with its Venus swing-by 40 000 km higher: the leg to Earth misses by millions of km.
+    let mut d = h.state().design().clone();
+    if let SwingbyMode::Shaped { altitude_km, .. } = &mut d.stops[1].swingby.mode {
+        *altitude_km += 40_000.0;
+    }
+    h.state_mut()
+        .apply(tourwright::gui::action::Action::Edit(Edit::Replace(
+            Box::new(d.clone()),
+        )));
+    h.run_steps(2);
+    let tour = tourwright::mission::PreparedTour::prepare(&d).unwrap();
+    let mut e = Evaluation::default();
+    evaluate(&tour, &EvalOptions::default(), &mut e);
+    let c = solve(&tour, &e, &ContinuousOptions::default(), &|_| {}, &|| false).unwrap();
+    assert!(!c.converged);
+    let revision = h.state().doc.revision();
+    h.state_mut().jobs.continuous = Some(tourwright::gui::jobs::ForRevision { value: c, revision });
+    h.get_by_label("Fidelity").click();
+    h.run_steps(3);
+    h.get_by_label_contains("Not converged:");
+    h.get_by_label("Sun view").click();
+    h.run_steps(3);
+}
+
 /// A map computed for a leg goes stale when that leg's bodies change: it says so, and a click on
 /// it sets no dates.
 #[test]
