@@ -389,7 +389,22 @@ impl TourwrightApp {
                         self.status =
                             Some((format!("retargeted: miss now {:.1} km", r.miss_km), false));
                     }
-                    Err(e) => self.status = Some((format!("retarget: {e}"), true)),
+                    Err(e) => {
+                        let hint = match (&e, move_epoch) {
+                            (
+                                tourwright_mission::retarget::RetargetError::NoConvergence(_)
+                                | tourwright_mission::retarget::RetargetError::BelowMinimum {
+                                    ..
+                                },
+                                false,
+                            ) => {
+                                "; altitude and aim alone cannot do it with the next date \
+                                 fixed: try \"Retarget + move date\""
+                            }
+                            _ => "",
+                        };
+                        self.status = Some((format!("retarget: {e}{hint}"), true));
+                    }
                 }
             }
             Action::Settings(c) => match c {

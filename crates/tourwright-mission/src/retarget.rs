@@ -35,6 +35,16 @@ pub enum RetargetError {
     /// The iteration ended without meeting the body.
     #[error("could not meet the next body (closest miss {0:.0} km)")]
     NoConvergence(f64),
+    /// The swing-by meets the next body only below its minimum altitude.
+    #[error(
+        "meets the next body only with the periapsis at {altitude_km:.0} km, below the minimum {min_km:.0} km"
+    )]
+    BelowMinimum {
+        /// The altitude that would meet it, km.
+        altitude_km: f64,
+        /// The minimum in force, km.
+        min_km: f64,
+    },
     /// The swing-by that meets the body is not a valid design (the field and why), e.g. a
     /// periapsis inside the planet or a date that overtakes the next stop.
     #[error("the swing-by that meets the next body is not a valid design: {0}")]
@@ -97,6 +107,14 @@ pub fn retarget(
         false,
     )
     .ok_or(RetargetError::NoConvergence(f64::INFINITY))?;
+    if cur.norm() <= tour.stops[k].max_miss_km
+        && crate::rules::below_minimum(x[0], tour.stops[k].min_altitude_km)
+    {
+        return Err(RetargetError::BelowMinimum {
+            altitude_km: x[0],
+            min_km: tour.stops[k].min_altitude_km,
+        });
+    }
     if cur.norm() > tour.stops[k].max_miss_km {
         return Err(RetargetError::NoConvergence(cur.norm()));
     }

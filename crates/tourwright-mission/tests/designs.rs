@@ -547,3 +547,22 @@ fn a_save_writes_through_a_link_and_keeps_the_file_mode() {
     // Special files are refused and left alone.
     assert!(files::save(&e, Path::new("/dev/null")).is_err());
 }
+
+/// A retarget that can meet the next body only below the swing-by's minimum altitude says so
+/// and changes nothing (an earlier Osprey: its Earth swing-by missed Jupiter by 20 712 km).
+#[test]
+fn a_retarget_below_the_minimum_altitude_is_refused_with_the_reason() {
+    let p = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/fixtures/osprey-missing-jupiter.tour.ron");
+    let d = tourwright_mission::files::load(&p).unwrap();
+    match tourwright_mission::retarget::retarget(&d, 1, true) {
+        Err(tourwright_mission::retarget::RetargetError::BelowMinimum {
+            altitude_km,
+            min_km,
+        }) => assert!(altitude_km < min_km, "{altitude_km} {min_km}"),
+        other => panic!("{:?}", other.map(|r| r.miss_km)),
+    }
+    // With the date fixed it cannot meet it at all, and says how close it came.
+    let e = tourwright_mission::retarget::retarget(&d, 1, false).unwrap_err();
+    assert!(e.to_string().contains("closest miss"), "{e}");
+}
