@@ -287,6 +287,14 @@ impl SunView {
                 ));
                 self.nbody_arcs_drawn += 1;
             }
+            // Its legend entry, above the continuous trajectory's.
+            painter.text(
+                rect.right_bottom() + egui::vec2(-8.0, -26.0),
+                egui::Align2::RIGHT_BOTTOM,
+                "··· n-body check, leg by leg (each leg from its patched-conic start)",
+                egui::FontId::proportional(12.0),
+                style::ink(dark).gamma_multiply(0.8),
+            );
         }
         // The continuous n-body trajectory, when it belongs to this revision, with a legend.
         self.continuous_arcs_drawn = 0;
