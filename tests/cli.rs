@@ -957,9 +957,10 @@ fn continuous_fidelity_reports_the_model_and_writes_an_oem_per_coast_arc() {
         .args(["fidelity", "--oem"])
         .arg(&oem)
         .arg(sample("lantern-jupiter-evej.tour.ron"))
-        .status()
+        .output()
         .unwrap();
-    assert_eq!(st.code(), Some(2));
+    assert_eq!(st.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&st.stderr).contains("--continuous"));
 }
 
 #[test]
