@@ -53,6 +53,25 @@ pub fn parse_levels(text: &str) -> Vec<f64> {
         .collect()
 }
 
+/// Grid marks of a log10 axis at 1, 2, 3 and 5 times each power of ten (the default spacer puts
+/// one mark per decade, and a plot of Mercury to Jupiter spans little more than one).
+fn log_marks(input: egui_plot::GridInput) -> Vec<egui_plot::GridMark> {
+    let (lo, hi) = input.bounds;
+    let mut marks = Vec::new();
+    for e in -3..=4 {
+        for m in [1.0, 2.0, 3.0, 5.0] {
+            let x = (m * 10f64.powi(e)).log10();
+            if x >= lo && x <= hi {
+                marks.push(egui_plot::GridMark {
+                    value: x,
+                    step_size: if m == 1.0 { 1.0 } else { 0.3 },
+                });
+            }
+        }
+    }
+    marks
+}
+
 fn log_axis(v: f64) -> String {
     let au = 10f64.powf(v);
     if au >= 10.0 {
@@ -150,6 +169,8 @@ impl TisserandView {
             .default_y_bounds(y0.log10(), y1.log10())
             .x_axis_label("periapsis radius (log scale)")
             .y_axis_label("apoapsis radius (log scale)")
+            .x_grid_spacer(log_marks)
+            .y_grid_spacer(log_marks)
             .x_axis_formatter(|m, _| log_axis(m.value))
             .y_axis_formatter(|m, _| log_axis(m.value))
             .label_formatter(|pos| {
