@@ -21,6 +21,29 @@ fn harness_for(app: TourwrightApp) -> Harness<'static, TourwrightApp> {
     h
 }
 
+/// The action a click on cell (i, j) of `map` in the Window map stands for, as the view decides.
+fn window_click(
+    h: &Harness<'static, TourwrightApp>,
+    map: &tourwright::search::window::WindowMap,
+    i: usize,
+    j: usize,
+) -> tourwright::gui::action::Action {
+    let app = h.state();
+    let vc = tourwright::gui::app::ViewCtx {
+        design: app.design(),
+        tour: app.tour.as_ref(),
+        eval: &app.eval,
+        events: &app.events,
+        selected: app.selected,
+        dark: true,
+        revision: app.doc.revision(),
+        generation: app.doc.generation(),
+        in_gesture: false,
+        jobs: &app.jobs,
+    };
+    app.views.window.click(&vc, map, i, j)
+}
+
 fn harness(sample: usize) -> Harness<'static, TourwrightApp> {
     let mut app = TourwrightApp::on_sample(sample);
     app.native_dialogs = false;
@@ -498,22 +521,7 @@ fn window_map_click_sets_the_leg_dates_as_one_undo_step() {
     };
     let map = window::compute(&d, &spec, &Progress::new()).unwrap();
     h.state_mut().views.window.leg = Some(0);
-    let action = {
-        let app = h.state();
-        let vc = tourwright::gui::app::ViewCtx {
-            design: app.design(),
-            tour: app.tour.as_ref(),
-            eval: &app.eval,
-            events: &app.events,
-            selected: app.selected,
-            dark: true,
-            revision: app.doc.revision(),
-            generation: app.doc.generation(),
-            in_gesture: false,
-            jobs: &app.jobs,
-        };
-        app.views.window.click(&vc, &map, 2, 7)
-    };
+    let action = window_click(&h, &map, 2, 7);
     h.state_mut().apply(action);
     h.run_steps(2);
     let (t0, t1) = map.epochs(2, 7);
@@ -592,22 +600,7 @@ fn a_window_map_for_other_bodies_says_it_is_stale_and_sets_nothing() {
     h.run_steps(3);
     h.get_by_label_contains("Stale: this map is for");
     let before = h.state().design().clone();
-    let action = {
-        let app = h.state();
-        let vc = tourwright::gui::app::ViewCtx {
-            design: app.design(),
-            tour: app.tour.as_ref(),
-            eval: &app.eval,
-            events: &app.events,
-            selected: app.selected,
-            dark: true,
-            revision: app.doc.revision(),
-            generation: app.doc.generation(),
-            in_gesture: false,
-            jobs: &app.jobs,
-        };
-        app.views.window.click(&vc, &map, 2, 7)
-    };
+    let action = window_click(&h, &map, 2, 7);
     h.state_mut().apply(action);
     h.run_steps(2);
     assert_eq!(*h.state().design(), before);

@@ -28,31 +28,17 @@ impl FidelityView {
 
     /// The leg-by-leg check (each leg from its patched-conic departure state).
     fn check_ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
-        let running = vc.jobs.progress_of(JobKind::Fidelity);
-        ui.horizontal(|ui| {
-            let can = vc.tour.is_some() && vc.eval.complete && running.is_none();
-            if ui
-                .add_enabled(can, egui::Button::new("Run n-body check"))
-                .on_hover_text(
-                    "Propagate every leg from its departure state under the Sun and the other \
-                     planets as point masses (each silent inside its sphere of influence), and \
-                     measure the miss at each encounter",
-                )
-                .clicked()
-            {
-                out.push(Action::StartJob(JobRequest::Fidelity));
-            }
-            if let Some(p) = running {
-                ui.add(
-                    egui::ProgressBar::new(p.fraction())
-                        .desired_width(160.0)
-                        .show_percentage(),
-                );
-                if ui.small_button("cancel").clicked() {
-                    out.push(Action::CancelJobs(JobKind::Fidelity));
-                }
-            }
-        });
+        job_row(
+            ui,
+            vc,
+            JobKind::Fidelity,
+            JobRequest::Fidelity,
+            "Run n-body check",
+            "Propagate every leg from its departure state under the Sun and the other planets as \
+             point masses (each silent inside its sphere of influence), and measure the miss at \
+             each encounter",
+            out,
+        );
         ui.label(
             RichText::new(
                 "Integrator: Dormand-Prince 8(5,3), relative tolerance 1e-12, absolute 1e-8 \
@@ -124,31 +110,17 @@ impl FidelityView {
 /// The continuous trajectory: run it, its verdict, its encounters and impulses.
 fn continuous_ui(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
     ui.label(RichText::new("Continuous n-body trajectory").strong());
-    let running = vc.jobs.progress_of(JobKind::Continuous);
-    ui.horizontal_wrapped(|ui| {
-        let can = vc.tour.is_some() && vc.eval.complete && running.is_none();
-        if ui
-            .add_enabled(can, egui::Button::new("Converge trajectory"))
-            .on_hover_text(
-                "Multiple shooting: one continuous trajectory through every swing-by under the \
-                 Sun and the planets (and the Moon, with a kernel) as point masses; periapsis \
-                 nodes at each stop, manoeuvres as impulses",
-            )
-            .clicked()
-        {
-            out.push(Action::StartJob(JobRequest::Continuous));
-        }
-        if let Some(p) = running {
-            ui.add(
-                egui::ProgressBar::new(p.fraction())
-                    .desired_width(160.0)
-                    .show_percentage(),
-            );
-            if ui.small_button("cancel").clicked() {
-                out.push(Action::CancelJobs(JobKind::Continuous));
-            }
-        }
-    });
+    job_row(
+        ui,
+        vc,
+        JobKind::Continuous,
+        JobRequest::Continuous,
+        "Converge trajectory",
+        "Multiple shooting: one continuous trajectory through every swing-by under the Sun and \
+         the planets (and the Moon, with a kernel) as point masses; periapsis nodes at each stop, \
+         manoeuvres as impulses",
+        out,
+    );
     let Some(c) = vc.jobs.continuous.as_ref() else {
         ui.label(
             "Converge the tour into one n-body trajectory to see the encounters, impulses and \
@@ -244,4 +216,39 @@ fn continuous_ui(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         )
         .weak(),
     );
+}
+
+/// A job's button (enabled when the design evaluates and no such job runs), its progress bar and
+/// its cancel button.
+#[allow(clippy::too_many_arguments)]
+fn job_row(
+    ui: &mut egui::Ui,
+    vc: &ViewCtx<'_>,
+    kind: JobKind,
+    request: JobRequest,
+    label: &str,
+    hover: &str,
+    out: &mut Actions,
+) {
+    let running = vc.jobs.progress_of(kind);
+    ui.horizontal_wrapped(|ui| {
+        let can = vc.tour.is_some() && vc.eval.complete && running.is_none();
+        if ui
+            .add_enabled(can, egui::Button::new(label))
+            .on_hover_text(hover)
+            .clicked()
+        {
+            out.push(Action::StartJob(request));
+        }
+        if let Some(p) = running {
+            ui.add(
+                egui::ProgressBar::new(p.fraction())
+                    .desired_width(160.0)
+                    .show_percentage(),
+            );
+            if ui.small_button("cancel").clicked() {
+                out.push(Action::CancelJobs(kind));
+            }
+        }
+    });
 }

@@ -105,8 +105,11 @@ fn check_converged(name: &str, d: &MissionDesign, e: &Evaluation, c: &Continuous
         assert!(enc.epoch_shift_s.abs() <= 30.0 * 86_400.0);
         assert!(enc.vinf_km_s.is_finite() && enc.vinf_km_s > 0.0);
     }
-    // The n-body trajectory costs about what the patched-conic one does (within 0.25 km/s on
-    // these tours), and its launch energy is close to the design's.
+    // The n-body trajectory costs about what the patched-conic one does, and its launch energy
+    // is close to the design's. Bounds ours (0.25 km/s, 2 km²/s²): a few times the largest change
+    // measured on the samples (0.104 km/s, 0.44 km²/s², README table), so that a solver that
+    // wanders to another family of trajectories fails. Gaps, altitude and epoch limits: the
+    // issue's requirements (1 km, 1 mm/s, 1 km) and the default epoch tolerance (30 days).
     assert!(
         (c.total_dv_km_s - e.ledger.total_dv_km_s).abs() < 0.25,
         "{name}: {} vs {}",
