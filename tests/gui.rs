@@ -8,8 +8,8 @@ use eframe::egui::{Key, Modifiers};
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use tourwright::gui::TourwrightApp;
-use tourwright::gui::app::Settings;
-use tourwright::gui::files::sample_design;
+use tourwright::gui::context::Settings;
+use tourwright::gui::samples::sample_design;
 use tourwright::mission::design::SwingbyMode;
 use tourwright::mission::{Edit, files};
 
@@ -29,7 +29,7 @@ fn window_click(
     j: usize,
 ) -> tourwright::gui::action::Action {
     let app = h.state();
-    let vc = tourwright::gui::app::ViewCtx {
+    let vc = tourwright::gui::context::ViewCtx {
         design: app.design(),
         tour: app.tour.as_ref(),
         eval: &app.eval,
@@ -274,7 +274,7 @@ fn every_file_edit_and_view_menu_entry_works() {
     h.run_steps(3);
     assert_eq!(*h.state().design(), before);
     // Open sample ▸ each sample (nothing unsaved, so no question).
-    for (i, (name, _)) in tourwright::gui::files::SAMPLES.iter().enumerate() {
+    for (i, (name, _)) in tourwright::gui::samples::SAMPLES.iter().enumerate() {
         h.get_by_label("File").click();
         h.run_steps(2);
         h.get_by_label("Open sample").click();

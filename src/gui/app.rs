@@ -16,6 +16,7 @@ use tourwright_mission::{MissionDesign, PreparedTour};
 
 use super::action::{Action, Actions, Pending, SettingsChange, View};
 use super::compare::DirectView;
+use super::context::{Settings, ViewCtx};
 use super::dialogs::Dialogs;
 use super::document::Document;
 use super::jobs::{Finished, Jobs};
@@ -25,67 +26,7 @@ use super::panels::{LedgerPanel, TourPanel};
 use super::search_panel::SearchPanel;
 use super::sun::SunView;
 use super::windowmap::WindowView;
-use super::{files, menus, status};
-
-/// Settings kept between runs.
-#[derive(Clone, Debug, serde::Serialize, serde::Deserialize)]
-#[serde(default)]
-pub struct Settings {
-    /// Dark theme.
-    pub dark: bool,
-    /// Recent files, newest first.
-    pub recent: Vec<PathBuf>,
-    /// Show the tour panel.
-    pub show_tour: bool,
-    /// Show the ledger.
-    pub show_ledger: bool,
-    /// Show the search panel.
-    pub show_search: bool,
-    /// The view shown.
-    pub view: View,
-    /// The default JPL kernel (the last one chosen), for designs that ask for "the default".
-    #[serde(default)]
-    pub default_kernel: Option<PathBuf>,
-}
-
-impl Default for Settings {
-    fn default() -> Self {
-        Settings {
-            dark: true,
-            recent: vec![],
-            show_tour: true,
-            show_ledger: true,
-            show_search: false,
-            view: View::Sun,
-            default_kernel: None,
-        }
-    }
-}
-
-/// What every view reads in a frame: the design, its prepared tour and evaluation (always of the
-/// same design state), the report rows, the selection, the jobs.
-pub struct ViewCtx<'a> {
-    /// The design.
-    pub design: &'a MissionDesign,
-    /// The prepared tour (absent when the design cannot be prepared; see the warnings).
-    pub tour: Option<&'a PreparedTour>,
-    /// The evaluation of `tour`.
-    pub eval: &'a Evaluation,
-    /// The event table of `eval`.
-    pub events: &'a Table,
-    /// The selected stop.
-    pub selected: usize,
-    /// Dark theme.
-    pub dark: bool,
-    /// Document revision.
-    pub revision: u64,
-    /// Document generation.
-    pub generation: u64,
-    /// A gesture is open.
-    pub in_gesture: bool,
-    /// Jobs and their results.
-    pub jobs: &'a Jobs,
-}
+use super::{files, menus, samples, status};
 
 /// The panels and views, each with its own state.
 #[derive(Default)]
@@ -182,7 +123,7 @@ impl TourwrightApp {
 
     /// A workbench on an embedded sample (used by tests and as the fallback start).
     pub fn on_sample(index: usize) -> Self {
-        let (d, p) = files::sample_design(index);
+        let (d, p) = samples::sample_design(index);
         TourwrightApp::with_design(d, p, Settings::default())
     }
 
@@ -226,7 +167,7 @@ impl TourwrightApp {
                 Err(e) => tried_err = Some(e.to_string()),
             }
         }
-        let (d, p) = files::sample_design(0);
+        let (d, p) = samples::sample_design(0);
         let mut app = TourwrightApp::with_design(d, p, settings);
         if let Some(e) = tried_err {
             app.status = Some((format!("could not open the last file: {e}"), true));
@@ -451,7 +392,7 @@ impl TourwrightApp {
         match action {
             Pending::New => self.set_document(MissionDesign::new_blank(), None),
             Pending::Sample(i) => {
-                let (d, p) = files::sample_design(i);
+                let (d, p) = samples::sample_design(i);
                 self.set_document(d, p);
             }
             Pending::Replace(d) => self.set_document(*d, None),

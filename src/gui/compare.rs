@@ -8,7 +8,7 @@ use tourwright_mission::Objective;
 use tourwright_search::direct::{DirectComparison, DirectOptions};
 
 use super::action::{Action, Actions, JobKind, JobRequest, Pending};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// Options shown in the view.

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 use eframe::egui::{self, Key};
 
 use super::action::{Action, Actions, PathPurpose, Pending};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 
 /// Open dialogs and their state.
 #[derive(Default)]

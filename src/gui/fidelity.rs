@@ -5,7 +5,7 @@
 use eframe::egui::{self, RichText};
 
 use super::action::{Action, Actions, JobKind, JobRequest};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 
 /// The view's own state.
 #[derive(Default)]

@@ -12,7 +12,7 @@ use tourwright_astro::kepler::escape_speed;
 use tourwright_mission::evaluate::StopKind;
 
 use super::action::Actions;
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// The energy ladder (no state of its own).

@@ -12,7 +12,7 @@ use tourwright_mission::evaluate::StopKind;
 use tourwright_mission::{Edit, rules};
 
 use super::action::{Action, Actions};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::{shared, style};
 
 /// Interaction state of the lens.

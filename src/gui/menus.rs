@@ -4,8 +4,8 @@
 use eframe::egui::{self, Key, KeyboardShortcut, Modifiers};
 
 use super::action::{Action, Actions, PathPurpose, Pending, SettingsChange, View};
-use super::app::Settings;
-use super::files::SAMPLES;
+use super::context::Settings;
+use super::samples::SAMPLES;
 
 /// Help topics in the Help menu.
 pub const HELP_TOPICS: [&str; 4] = [

@@ -14,7 +14,7 @@ use tourwright_mission::report::{self, EVENT_COLUMNS, LEDGER_VIEW_COLUMNS};
 use tourwright_mission::{Edit, MissionDesign, rules};
 
 use super::action::{Action, Actions, PathPurpose};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::{shared, style};
 
 /// The tour panel, with the date being typed and its validation message.

@@ -14,7 +14,7 @@ use tourwright_search::explore::{DsmPolicy, ExploreSpec};
 use tourwright_search::optimize::{self, OptimizeOptions, SearchOutcome};
 
 use super::action::{Action, Actions, JobKind, JobRequest, Pending};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// What applying a result would give on the design as it is now.

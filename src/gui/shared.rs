@@ -7,7 +7,7 @@ use tourwright_mission::design::SwingbyMode;
 use tourwright_mission::{Edit, rules};
 
 use super::action::{Action, Actions};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// The edit that switches stop `k` to shaped, starting from the altitude and aim it has now (or

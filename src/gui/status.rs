@@ -4,7 +4,7 @@
 use eframe::egui::{self, Color32, RichText};
 
 use super::action::{Action, Actions};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// Draw the status bar.

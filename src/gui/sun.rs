@@ -15,7 +15,7 @@ use tourwright_mission::evaluate::legs;
 use tourwright_mission::tour::{BodyEphemeris, BodyId, PreparedTour};
 
 use super::action::{Action, Actions};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// Orbit polylines (name, points in AU).

@@ -13,7 +13,7 @@ use tourwright_astro::tisserand::{self, Contour, Crossing};
 use tourwright_mission::evaluate::legs;
 
 use super::action::Actions;
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// Points per contour (pump angle 0-180°); the CLI uses the same.

@@ -16,7 +16,7 @@ use tourwright_mission::{Edit, MissionDesign};
 use tourwright_search::window::{Quantity, SecondAxis, WindowMap, WindowSpec};
 
 use super::action::{Action, Actions, JobKind, JobRequest};
-use super::app::ViewCtx;
+use super::context::ViewCtx;
 use super::style;
 
 /// Contour polylines (grid coordinates: cell centres at integers) with their level.
