@@ -219,6 +219,10 @@ const fn col(key: &'static str, header: &'static str, decimals: usize) -> Column
     }
 }
 
+/// Appended to the `kind` cell of a stop the spacecraft does not reach (a shaped swing-by before
+/// it misses its next body); such a row keeps its planned date and loses its figures.
+pub const NOT_REACHED: &str = " (not reached)";
+
 /// The `kind` cell of a deep-space manoeuvre's row in the event table.
 pub const DSM_KIND: &str = "DSM";
 
@@ -254,11 +258,20 @@ pub const LEDGER_VIEW_COLUMNS: [usize; 11] = [0, 1, 2, 3, 5, 6, 7, 8, 18, 17, 19
 /// [`DSM_KIND`], no stop number). Figures that do not apply to a row are absent.
 pub fn events(tour: &PreparedTour, e: &Evaluation) -> Table {
     let n = e.stops.len().min(tour.stops.len());
+    let unreached = e.first_unreached().unwrap_or(usize::MAX);
     let mut rows = Vec::with_capacity(n + e.legs.len());
     for k in 0..n {
-        rows.push(stop_row(tour, e, k, n));
+        let mut row = stop_row(tour, e, k, n);
+        if k >= unreached {
+            not_reached(&mut row);
+        }
+        rows.push(row);
         if let Some(d) = e.legs.get(k).and_then(|l| l.dsm.as_ref()) {
-            rows.push(dsm_row(tour, k, d));
+            let mut row = dsm_row(tour, k, d);
+            if k >= unreached {
+                not_reached(&mut row);
+            }
+            rows.push(row);
         }
     }
     Table {
@@ -267,9 +280,30 @@ pub fn events(tour: &PreparedTour, e: &Evaluation) -> Table {
     }
 }
 
+/// A row of a stop (or manoeuvre) that is not reached: the kind says so; the number, body, date
+/// and the Sun distance of the planned stop stay; every flight figure is dropped.
+fn not_reached(row: &mut [Cell]) {
+    if let Some(Cell::Text(kind)) = row.get_mut(1) {
+        kind.push_str(NOT_REACHED);
+    }
+    for (c, cell) in row.iter_mut().enumerate() {
+        if !matches!(
+            EVENT_COLUMNS[c].key,
+            "stop" | "kind" | "body" | "epoch_utc" | "mjd2000"
+        ) {
+            *cell = Cell::Num(None);
+        }
+    }
+}
+
+/// True when a row of the event table is of a stop that is not reached.
+pub fn is_unreached_row(row: &[Cell]) -> bool {
+    matches!(row.get(1), Some(Cell::Text(t)) if t.ends_with(NOT_REACHED))
+}
+
 /// True for a manoeuvre's row of the event table.
 pub fn is_dsm_row(row: &[Cell]) -> bool {
-    matches!(row.get(1), Some(Cell::Text(t)) if t == DSM_KIND)
+    matches!(row.get(1), Some(Cell::Text(t)) if t.strip_suffix(NOT_REACHED).unwrap_or(t) == DSM_KIND)
 }
 
 fn dsm_row(tour: &PreparedTour, k: usize, d: &crate::evaluate::DsmResult) -> Vec<Cell> {
@@ -506,6 +540,9 @@ pub struct StopReport {
     pub stop: usize,
     /// Launch, Swing-by or Arrival.
     pub kind: String,
+    /// False for a stop the spacecraft does not reach (an earlier shaped swing-by misses its
+    /// next body); its flight figures are then `null`.
+    pub reached: bool,
     /// Body name.
     pub body: String,
     /// Epoch, ISO-8601 UTC.
@@ -677,9 +714,11 @@ pub fn eval_report(tour: &PreparedTour, e: &Evaluation) -> EvalReport {
         .enumerate()
         .map(|(k, r)| {
             let n = |i: usize| r.get(i).and_then(Cell::num);
+            let reached = !is_unreached_row(r);
             StopReport {
                 stop: k + 1,
-                kind: text_of(&r[1]),
+                kind: text_of(&r[1]).trim_end_matches(NOT_REACHED).to_string(),
+                reached,
                 body: text_of(&r[2]),
                 epoch_utc: text_of(&r[3]),
                 mjd2000: n(4),
@@ -702,6 +741,7 @@ pub fn eval_report(tour: &PreparedTour, e: &Evaluation) -> EvalReport {
                 swingby: e
                     .stops
                     .get(k)
+                    .filter(|_| reached)
                     .and_then(|s| s.swingby)
                     .map(|sw| SwingbyReport {
                         shaped: sw.shaped,

@@ -566,3 +566,55 @@ fn a_retarget_below_the_minimum_altitude_is_refused_with_the_reason() {
     let e = tourwright_mission::retarget::retarget(&d, 1, false).unwrap_err();
     assert!(e.to_string().contains("closest miss"), "{e}");
 }
+
+/// A shaped swing-by moved past the cliff: its ballistic leg misses the next body by far more
+/// than the tolerance. The stops after it are not reached: the event table keeps their planned
+/// dates and drops every flight figure, and the JSON report says `reached: false`.
+#[test]
+fn stops_after_a_miss_are_not_reached_in_every_report() {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../../sample-missions");
+    let mut d = files::load(&dir.join("lantern-jupiter-evej.tour.ron")).unwrap();
+    let e0 = evaluate(&d);
+    assert_eq!(e0.first_unreached(), None);
+    let SwingbyMode::Shaped {
+        altitude_km,
+        aim_deg,
+    } = d.stops[1].swingby.mode
+    else {
+        panic!("Lantern's Venus swing-by is shaped");
+    };
+    d.stops[1].swingby.mode = SwingbyMode::Shaped {
+        altitude_km: altitude_km + 560.0,
+        aim_deg,
+    };
+    let t = tour(&d);
+    let e = evaluate(&d);
+    assert_eq!(e.first_unreached(), Some(2));
+    assert!(e.reached(1) && !e.reached(2) && !e.reached(3));
+    let miss = e
+        .warnings
+        .iter()
+        .find_map(|w| match w {
+            Warning::MissesNextBody { miss_km, .. } => Some(*miss_km),
+            _ => None,
+        })
+        .unwrap();
+    // Far beyond the 1 000 km default tolerance (the cliff: millions of km).
+    assert!(miss > 1.0e6, "{miss}");
+    let table = tourwright_mission::report::events(&t, &e);
+    let unreached: Vec<_> = table
+        .rows
+        .iter()
+        .filter(|r| tourwright_mission::report::is_unreached_row(r))
+        .collect();
+    assert_eq!(unreached.len(), 3, "Earth, the manoeuvre on leg 3, Jupiter");
+    for r in &unreached {
+        assert!(r[3].display(0).starts_with("20"), "the planned date stays");
+        assert!(r[5..].iter().all(|c| c.num().is_none()), "{r:?}");
+    }
+    let json = tourwright_mission::report::eval_report(&t, &e);
+    let reached: Vec<bool> = json.stops.iter().map(|s| s.reached).collect();
+    assert_eq!(reached, [true, true, false, false]);
+    assert_eq!(json.stops[2].kind, "Swing-by");
+    assert!(json.stops[2].vinf_in_km_s.is_none() && json.stops[2].swingby.is_none());
+}

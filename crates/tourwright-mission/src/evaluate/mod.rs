@@ -422,10 +422,11 @@ impl fmt::Display for Warning {
                 tolerance_km,
             } => write!(
                 f,
-                "stop {}: the shaped swing-by misses the next body by {:.0} km (at most {:.0} km counts as meeting it)",
+                "stop {}: the shaped swing-by misses the next body by {:.0} km (at most {:.0} km counts as meeting it); stop {} and those after it are not reached",
                 stop + 1,
                 miss_km,
-                tolerance_km
+                tolerance_km,
+                stop + 2
             ),
             Warning::DsmOutsideLeg { leg, fraction } => write!(
                 f,
@@ -571,6 +572,25 @@ pub struct Evaluation {
 }
 
 impl Evaluation {
+    /// The first stop the spacecraft does not reach: the one after the earliest shaped swing-by
+    /// whose ballistic leg misses its next body beyond the tolerance. The figures of that stop and
+    /// of every later one are computed as if it were reached (the optimiser needs them to find its
+    /// way back); views and reports show them as not reached.
+    pub fn first_unreached(&self) -> Option<usize> {
+        self.warnings
+            .iter()
+            .filter_map(|w| match w {
+                Warning::MissesNextBody { stop, .. } => Some(stop + 1),
+                _ => None,
+            })
+            .min()
+    }
+
+    /// True when stop `k` is reached (see [`Evaluation::first_unreached`]).
+    pub fn reached(&self, k: usize) -> bool {
+        self.first_unreached().is_none_or(|u| k < u)
+    }
+
     /// Total time of flight, days.
     pub fn total_tof_days(&self) -> f64 {
         match (self.stops.first(), self.stops.last()) {
