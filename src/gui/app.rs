@@ -16,13 +16,14 @@ use tourwright_mission::{MissionDesign, PreparedTour};
 
 use super::action::{Action, Actions, Pending, SettingsChange, View};
 use super::compare::DirectView;
-use super::context::{Settings, ViewCtx};
+use super::context::{LEDGER_MIN_HEIGHT, Settings, ViewCtx};
 use super::dialogs::Dialogs;
 use super::document::Document;
 use super::jobs::{Finished, Jobs};
 use super::ladder::LadderView;
+use super::ledger::LedgerPanel;
 use super::lens::LensView;
-use super::panels::{LedgerPanel, TourPanel};
+use super::panels::TourPanel;
 use super::search_panel::SearchPanel;
 use super::sun::SunView;
 use super::windowmap::WindowView;
@@ -52,6 +53,34 @@ pub struct Views {
     /// Tisserand graph.
     pub tisserand: super::tisserand::TisserandView,
 }
+
+/// The ledger's grip: a band along its top edge that resizes it. Returns the pointer's vertical
+/// motion this frame while it is dragged.
+fn ledger_grip(ui: &mut egui::Ui) -> Option<f32> {
+    let (rect, resp) = ui.allocate_exact_size(
+        egui::vec2(ui.available_width(), 2.0 * PANEL_GRAB),
+        egui::Sense::drag(),
+    );
+    let hot = resp.hovered() || resp.dragged();
+    if hot {
+        ui.ctx().set_cursor_icon(egui::CursorIcon::ResizeVertical);
+    }
+    let c = rect.center();
+    let color = if hot {
+        ui.visuals().strong_text_color()
+    } else {
+        ui.visuals().weak_text_color()
+    };
+    ui.painter().line_segment(
+        [c - egui::vec2(24.0, 0.0), c + egui::vec2(24.0, 0.0)],
+        egui::Stroke::new(2.0, color),
+    );
+    let resp = resp.on_hover_text("Drag to resize the ledger");
+    resp.dragged().then(|| resp.drag_delta().y)
+}
+
+/// Half the width of the band that grabs a panel's edge, points.
+const PANEL_GRAB: f32 = 6.0;
 
 /// The workbench.
 pub struct TourwrightApp {
@@ -418,6 +447,8 @@ impl TourwrightApp {
                 egui::Theme::Light
             });
             self.theme_applied = Some(self.settings.dark);
+            // Panel edges easy to grab (egui's default band is 3 points either side).
+            ctx.all_styles_mut(|s| s.interaction.resize_grab_radius_side = PANEL_GRAB);
         }
         self.refresh();
         for f in self.jobs.poll(self.doc.generation()) {
@@ -429,6 +460,7 @@ impl TourwrightApp {
         }
         let mut actions: Actions = menus::shortcuts(&ctx);
         let mut view_rect = None;
+        let mut ledger_drag = None;
         {
             let vc = ViewCtx {
                 design: self.doc.design(),
@@ -450,54 +482,97 @@ impl TourwrightApp {
             egui::Panel::bottom("status").show(ui, |ui| {
                 status::status_bar(ui, &vc, self.status.as_ref(), &mut actions)
             });
+            let screen = ctx.content_rect();
             if settings.show_ledger {
+                // Its height is the user's (a grip along its top edge, kept in the settings),
+                // never more than half the window, never less than a row or two. The grip lies
+                // inside the panel, so a view's canvas can never take its drag.
+                let max_h = (screen.height() * 0.5).max(LEDGER_MIN_HEIGHT);
+                let h = settings.ledger_height.clamp(LEDGER_MIN_HEIGHT, max_h);
                 egui::Panel::bottom("ledger")
-                    .resizable(true)
-                    .default_size(190.0)
-                    .show(ui, |ui| actions.extend(self.views.ledger.ui(ui, &vc)));
+                    .resizable(false)
+                    .exact_size(h)
+                    .show(ui, |ui| {
+                        ledger_drag = ledger_grip(ui);
+                        actions.extend(self.views.ledger.ui(ui, &vc));
+                    });
+                ledger_drag = ledger_drag.map(|dy| (h - dy).clamp(LEDGER_MIN_HEIGHT, max_h));
             }
+            // Side panels: width ranges that leave the central view at least a third of the
+            // window; their content scrolls and never sets their width.
+            let side_max = |share: f32, cap: f32| (screen.width() * share).clamp(220.0, cap);
             if settings.show_tour {
                 egui::Panel::left("tour")
                     .resizable(true)
-                    .default_size(340.0)
+                    .default_size(340.0_f32.min(side_max(0.34, 460.0)))
+                    .size_range(220.0..=side_max(0.34, 460.0))
                     .show(ui, |ui| {
-                        egui::ScrollArea::vertical()
+                        egui::ScrollArea::both()
+                            .auto_shrink(false)
                             .show(ui, |ui| actions.extend(self.views.tour.ui(ui, &vc)));
                     });
             }
             if settings.show_search {
                 egui::Panel::right("search")
                     .resizable(true)
-                    .default_size(360.0)
-                    .size_range(280.0..=560.0)
+                    .default_size(360.0_f32.min(side_max(0.3, 560.0)))
+                    .size_range(220.0..=side_max(0.3, 560.0))
                     .show(ui, |ui| {
                         egui::ScrollArea::both()
+                            .auto_shrink(false)
                             .show(ui, |ui| actions.extend(self.views.search.ui(ui, &vc)));
                     });
             }
             let view = settings.view;
             let views = &mut self.views;
-            egui::CentralPanel::default_margins().show(ui, |ui| {
-                ui.horizontal(|ui| {
-                    for v in View::ALL {
-                        if ui.selectable_label(view == v, v.title()).clicked() {
-                            actions.push(Action::Settings(SettingsChange::View(v)));
-                        }
-                    }
-                });
-                ui.separator();
-                view_rect = Some(ui.available_rect_before_wrap());
-                actions.extend(match view {
-                    View::Sun => views.sun.ui(ui, &vc),
-                    View::Lens => views.lens.ui(ui, &vc),
-                    View::Ladder => views.ladder.ui(ui, &vc),
-                    View::Direct => views.direct.ui(ui, &vc),
-                    View::Window => views.window.ui(ui, &vc),
-                    View::Tisserand => views.tisserand.ui(ui, &vc),
-                    View::Fidelity => views.fidelity.ui(ui, &vc),
-                });
+            // A wider bottom margin than egui's: the ledger's resize band lies above its edge, and
+            // a view's canvas under it would take the drag (and pan instead of resizing).
+            let central = egui::Frame::central_panel(ui.style()).inner_margin(egui::Margin {
+                left: 8,
+                right: 8,
+                top: 8,
+                bottom: (PANEL_GRAB + 6.0) as i8,
             });
+            egui::CentralPanel::default_margins()
+                .frame(central)
+                .show(ui, |ui| {
+                    // Tabs wrap onto a second row when the view is narrow.
+                    ui.horizontal_wrapped(|ui| {
+                        for v in View::ALL {
+                            if ui.selectable_label(view == v, v.title()).clicked() {
+                                actions.push(Action::Settings(SettingsChange::View(v)));
+                            }
+                        }
+                    });
+                    ui.separator();
+                    view_rect = Some(ui.available_rect_before_wrap());
+                    // A view draws inside the central rectangle only, whatever its content's size.
+                    ui.set_clip_rect(ui.available_rect_before_wrap().intersect(ui.clip_rect()));
+                    actions.extend(match view {
+                        View::Sun => views.sun.ui(ui, &vc),
+                        View::Lens => views.lens.ui(ui, &vc),
+                        View::Ladder => views.ladder.ui(ui, &vc),
+                        // Text-and-table views scroll when the window is short.
+                        View::Direct => {
+                            egui::ScrollArea::vertical()
+                                .auto_shrink(false)
+                                .show(ui, |ui| views.direct.ui(ui, &vc))
+                                .inner
+                        }
+                        View::Window => views.window.ui(ui, &vc),
+                        View::Tisserand => views.tisserand.ui(ui, &vc),
+                        View::Fidelity => {
+                            egui::ScrollArea::vertical()
+                                .auto_shrink(false)
+                                .show(ui, |ui| views.fidelity.ui(ui, &vc))
+                                .inner
+                        }
+                    });
+                });
             actions.extend(self.dialogs.ui(&ctx, &vc, self.frame_ms));
+        }
+        if let Some(h) = ledger_drag {
+            self.settings.ledger_height = h;
         }
         // A gesture ends when no button is held and no field is being typed into.
         let idle = !ctx.input(|i| i.pointer.any_down()) && ctx.memory(|m| m.focused().is_none());

@@ -62,7 +62,7 @@ impl DirectView {
             self.requested = Some(vc.revision);
             out.push(Action::StartJob(self.request(vc)));
         }
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             ui.label("Rank direct transfers by");
             let default = if vc.design.launch_vehicle.is_some() {
                 Objective::DeliveredMass

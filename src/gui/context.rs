@@ -27,6 +27,8 @@ pub struct Settings {
     pub show_search: bool,
     /// The view shown.
     pub view: View,
+    /// The ledger's height, points.
+    pub ledger_height: f32,
     /// The default JPL kernel (the last one chosen), for designs that ask for "the default".
     #[serde(default)]
     pub default_kernel: Option<PathBuf>,
@@ -41,6 +43,7 @@ impl Default for Settings {
             show_ledger: true,
             show_search: false,
             view: View::Sun,
+            ledger_height: LEDGER_DEFAULT_HEIGHT,
             default_kernel: None,
         }
     }
@@ -70,3 +73,8 @@ pub struct ViewCtx<'a> {
     /// Jobs and their results.
     pub jobs: &'a Jobs,
 }
+
+/// The ledger's smallest height, points: its heading, the column header and two rows.
+pub const LEDGER_MIN_HEIGHT: f32 = 110.0;
+/// The ledger's height on first start, points: a five-stop tour with a manoeuvre.
+pub const LEDGER_DEFAULT_HEIGHT: f32 = 200.0;

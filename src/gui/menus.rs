@@ -161,5 +161,17 @@ pub fn menu_bar(
                 }
             }
         });
+        ui.separator();
+        // The search is the workbench's main tool after the drag: one click away, not a menu
+        // entry deep.
+        if ui
+            .selectable_label(settings.show_search, "Search")
+            .on_hover_text("Show or hide the Search panel: optimise dates, explore sequences")
+            .clicked()
+        {
+            out.push(Action::Settings(SettingsChange::ShowSearch(
+                !settings.show_search,
+            )));
+        }
     });
 }

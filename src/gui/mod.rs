@@ -18,6 +18,7 @@ pub mod fidelity;
 pub mod files;
 pub mod jobs;
 pub mod ladder;
+pub mod ledger;
 pub mod lens;
 pub mod menus;
 pub mod panels;

@@ -10,8 +10,7 @@ use tourwright_mission::design::{
     LegOptions, PerformancePoint, SwingbyMode,
 };
 use tourwright_mission::evaluate::StopKind;
-use tourwright_mission::report::{self, EVENT_COLUMNS, LEDGER_VIEW_COLUMNS};
-use tourwright_mission::{Edit, MissionDesign, rules};
+use tourwright_mission::{Edit, MissionDesign};
 
 use super::action::{Action, Actions, PathPurpose};
 use super::context::ViewCtx;
@@ -67,7 +66,7 @@ impl TourPanel {
         let d = vc.design;
         ui.heading("Tour");
         let mut name = d.name.clone();
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let lab = ui.label("Name");
             if ui
                 .text_edit_singleline(&mut name)
@@ -83,7 +82,7 @@ impl TourPanel {
                 RichText::new(format!("! not changed: {msg}")).color(style::error_color(vc.dark)),
             );
         }
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let lab = ui
                 .label("Ephemeris")
                 .on_hover_text("The model that gives the planets' states and constants");
@@ -119,7 +118,7 @@ impl TourPanel {
             }
         });
         if let EphemerisChoice::Kernel(k) = &d.ephemeris {
-            ui.horizontal(|ui| {
+            ui.horizontal_wrapped(|ui| {
                 ui.label("Kernel");
                 let shown = if k.path.is_empty() {
                     "(default kernel of the settings)".to_string()
@@ -169,7 +168,7 @@ impl TourPanel {
                     {
                         out.push(Action::Select(k));
                     }
-                    ui.horizontal(|ui| {
+                    ui.horizontal_wrapped(|ui| {
                         let lab = ui.label("Body");
                         let mut body = stop.body.clone();
                         egui::ComboBox::from_id_salt("body")
@@ -189,7 +188,7 @@ impl TourPanel {
                     if kind == StopKind::SwingBy {
                         swingby_rows(ui, vc, k, &mut out);
                     }
-                    ui.horizontal(|ui| {
+                    ui.horizontal_wrapped(|ui| {
                         if ui
                             .small_button("+ after")
                             .on_hover_text("Insert a stop after this one")
@@ -260,7 +259,7 @@ impl TourPanel {
         epoch: Epoch,
         out: &mut Actions,
     ) {
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let lab = ui
                 .label("Date")
                 .on_hover_text("UTC calendar date; also accepts …T12:00:00 and a TDB suffix");
@@ -271,7 +270,7 @@ impl TourPanel {
             let r = ui
                 .add(
                     egui::TextEdit::singleline(&mut text)
-                        .desired_width(150.0)
+                        .desired_width(96.0)
                         .id_salt("epoch"),
                 )
                 .labelled_by(lab.id);
@@ -355,7 +354,7 @@ fn swingby_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions
         .and_then(|t| t.stops.get(k))
         .map(|s| s.body.data.min_altitude_km)
         .unwrap_or(0.0);
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         let mut custom = stop.swingby.min_altitude_km.is_some();
         let r_box = ui.checkbox(&mut custom, "Min altitude");
         if r_box
@@ -385,7 +384,7 @@ fn swingby_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions
             }));
         }
     });
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         ui.label("Mode").on_hover_text(
             "Targeted: the dates fix both legs (powered if needed). Shaped: you set altitude and \
              aim; the next leg is ballistic, or coasts to its deep-space manoeuvre.",
@@ -412,7 +411,7 @@ fn swingby_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions
         mut aim_deg,
     } = stop.swingby.mode
     {
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let speed = altitude_km.abs().max(100.0) * 0.005;
             let r1 = style::labelled(
                 ui,
@@ -464,7 +463,7 @@ fn leg_row(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Actions) {
         && k > 0
         && k + 1 < vc.design.stops.len()
         && leg.dsm.is_none();
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         ui.label(RichText::new("|").color(color).strong());
         let leg_lab = ui.label(
             RichText::new(format!("leg {}: {}", k + 1, style::fixed(tof, 0) + " d")).color(color),
@@ -544,7 +543,7 @@ fn dsm_rows(
 ) {
     let color = style::leg_color(k);
     let res = vc.eval.legs.get(k).and_then(|l| l.dsm);
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         ui.label(RichText::new("|").color(color).strong());
         ui.label(RichText::new("DSM").color(color).strong())
             .on_hover_text("Deep-space manoeuvre: one impulse on this leg");
@@ -624,7 +623,7 @@ fn dsm_rows(
         }
     });
     if let Some(l) = m.launch {
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             ui.label(RichText::new("|").color(color).strong());
             let (mut v, mut ra, mut dec) = (l.vinf_km_s, l.rla_deg, l.dla_deg);
             let r1 = style::labelled(
@@ -678,7 +677,7 @@ fn arrival_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         ArrivalGoal::Capture { .. } => 1,
         ArrivalGoal::Rendezvous => 2,
     };
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         ui.radio_value(&mut kind, 0, "flyby only");
         ui.radio_value(&mut kind, 1, "capture");
         ui.radio_value(&mut kind, 2, "rendezvous");
@@ -708,7 +707,7 @@ fn arrival_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         mut eccentricity,
     } = new_goal
     {
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let speed = periapsis_radius_km * 0.002;
             let a = style::labelled(
                 ui,
@@ -753,7 +752,7 @@ fn launch_rows(ui: &mut egui::Ui, d: &MissionDesign, out: &mut Actions) {
         }),
     ];
     for (label, v, def, unit, set) in rows {
-        ui.horizontal(|ui| {
+        ui.horizontal_wrapped(|ui| {
             let mut on = v.is_some();
             let mut x = v.unwrap_or(def);
             let cb = ui.checkbox(&mut on, label);
@@ -861,7 +860,7 @@ fn vehicle_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         lv.performance.remove(i);
         changed = true;
     }
-    ui.horizontal(|ui| {
+    ui.horizontal_wrapped(|ui| {
         if ui.small_button("+ row").clicked() {
             let last = lv.performance.last().copied().unwrap_or(PerformancePoint {
                 c3_km2_s2: 0.0,
@@ -889,97 +888,5 @@ fn vehicle_rows(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
     }
     if changed && increasing {
         out.push(Action::EditLive(Edit::SetVehicle(Some(lv))));
-    }
-}
-
-/// The ledger: the per-stop table (from the mission crate's report rows), the totals line and
-/// the warnings.
-#[derive(Default)]
-pub struct LedgerPanel;
-
-impl LedgerPanel {
-    /// Draw the ledger.
-    pub fn ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>) -> Actions {
-        let mut out = Vec::new();
-        let e = vc.eval;
-        ui.horizontal(|ui| {
-            ui.heading("Ledger");
-            if ui
-                .button("Copy table")
-                .on_hover_text("Copy the table as tab-separated text")
-                .clicked()
-            {
-                out.push(Action::Copy(vc.events.to_tsv()));
-                out.push(Action::Status(
-                    "ledger copied to the clipboard".into(),
-                    false,
-                ));
-            }
-            if let Some(t) = vc.tour {
-                ui.label(report::summary_line(t, e));
-            }
-        });
-        egui::ScrollArea::both().show(ui, |ui| {
-            egui::Grid::new("ledger-grid")
-                .striped(true)
-                .num_columns(LEDGER_VIEW_COLUMNS.len())
-                .show(ui, |ui| {
-                    for &c in &LEDGER_VIEW_COLUMNS {
-                        ui.label(RichText::new(EVENT_COLUMNS[c].header).strong());
-                    }
-                    ui.end_row();
-                    // Rows come from the report built with this very evaluation: one per stop
-                    // and one per deep-space manoeuvre (which has no stop number).
-                    for row in vc.events.rows.iter() {
-                        let stop_no = row[0].num().map(|x| x as usize);
-                        let k = stop_no.map(|n| n.saturating_sub(1)).unwrap_or(usize::MAX);
-                        for &c in &LEDGER_VIEW_COLUMNS {
-                            let text = row[c].display(EVENT_COLUMNS[c].decimals);
-                            let col = EVENT_COLUMNS[c];
-                            match col.key {
-                                "stop" if stop_no.is_none() => {
-                                    ui.label("");
-                                }
-                                "stop" => {
-                                    if ui.selectable_label(vc.selected == k, text).clicked() {
-                                        out.push(Action::Select(k));
-                                    }
-                                }
-                                "kind" if report::is_dsm_row(row) => {
-                                    ui.label(RichText::new(text).italics());
-                                }
-                                "body" => {
-                                    ui.label(RichText::new(&text).color(style::body_color(&text)));
-                                }
-                                "periapsis_altitude_km" => {
-                                    let low = e
-                                        .stops
-                                        .get(k)
-                                        .and_then(|s| s.swingby)
-                                        .and_then(|w| w.altitude_km.map(|a| (a, w.min_altitude_km)))
-                                        .is_some_and(|(a, m)| rules::below_minimum(a, m));
-                                    let t = RichText::new(text);
-                                    ui.label(if low {
-                                        t.color(style::error_color(vc.dark))
-                                    } else {
-                                        t
-                                    });
-                                }
-                                "epoch_utc" => {
-                                    ui.label(text.get(..10).unwrap_or(&text));
-                                }
-                                _ => {
-                                    ui.label(text);
-                                }
-                            }
-                        }
-                        ui.end_row();
-                    }
-                });
-            for w in &e.warnings {
-                ui.label(RichText::new(format!("! {w}")).color(style::warn_color(vc.dark)));
-            }
-        });
-        out
     }
 }
