@@ -40,9 +40,26 @@ impl LadderView {
             .weak(),
         );
         let name = |k: usize| tour.stops[k].body.name.to_string();
+        // Stops after a shaped swing-by that misses its next body are not reached: they are not
+        // drawn, and the leg that misses ends in a note.
+        let reached = e.first_unreached().unwrap_or(usize::MAX).min(e.stops.len());
+        if reached < e.stops.len() {
+            ui.label(
+                RichText::new(format!(
+                    "! stop {} ({}) and those after it are not reached: the swing-by at stop {} \
+                     misses it. Retarget that swing-by.",
+                    reached + 1,
+                    name(reached),
+                    reached
+                ))
+                .color(style::warn_color(vc.dark)),
+            );
+        }
         Plot::new("energy-ladder")
             .height(h * 0.58)
-            .legend(Legend::default())
+            // Energy rises left to right on a tour outwards, falls on one inwards: the legend goes
+            // in the corner the first and last stops leave free.
+            .legend(Legend::default().position(legend_corner(e)))
             .x_axis_label("days from launch")
             .y_axis_label("energy (km²/s²)")
             .show(ui, |pl| {
@@ -53,55 +70,83 @@ impl LadderView {
                 );
                 // Energy is constant on a two-body arc: the value leaving each stop.
                 for (k, leg) in e.legs.iter().enumerate() {
-                    if !leg.solved || k + 1 >= e.stops.len() {
+                    if !leg.solved || k + 1 >= e.stops.len() || k + 1 > reached {
                         continue;
                     }
                     let (a, b) = (&e.stops[k], &e.stops[k + 1]);
                     let (xa, xb) = (a.epoch.days() - t0, b.epoch.days() - t0);
                     // A manoeuvre splits the leg: a step at its date.
-                    let pts = match leg.dsm {
+                    // Constant energy on each coast arc: one horizontal piece per arc, and a
+                    // manoeuvre's step as a dotted riser (pieces, not one polyline: a polyline's
+                    // joins drew the step as a wedge).
+                    let missing = k + 1 == reached;
+                    let color = style::leg_color(k);
+                    let piece = |x0: f64, x1: f64, y: f64| {
+                        let l = Line::new(
+                            format!("leg {}", k + 1),
+                            PlotPoints::from(vec![[x0, y], [x1, y]]),
+                        )
+                        .color(color)
+                        .width(3.0);
+                        if missing {
+                            l.style(LineStyle::dashed_dense())
+                        } else {
+                            l
+                        }
+                    };
+                    match leg.dsm {
                         Some(d) => {
                             let xd = d.t.days() - t0;
-                            vec![
-                                [xa, a.energy_after],
-                                [xd, d.energy_before],
-                                [xd, d.energy_after],
-                                [xb, b.energy_before],
-                            ]
+                            pl.line(piece(xa, xd, d.energy_before));
+                            pl.line(piece(xd, xb, d.energy_after));
+                            pl.line(
+                                Line::new(
+                                    "",
+                                    PlotPoints::from(vec![
+                                        [xd, d.energy_before],
+                                        [xd, d.energy_after],
+                                    ]),
+                                )
+                                .color(color)
+                                .width(2.0)
+                                .style(LineStyle::dotted_dense()),
+                            );
+                            pl.points(
+                                Points::new("", PlotPoints::from(vec![[xd, d.energy_after]]))
+                                    .shape(MarkerShape::Cross)
+                                    .radius(7.0)
+                                    .color(color),
+                            );
+                            // Under the arc after the manoeuvre, clear of the stops' labels.
+                            pl.text(
+                                Text::new(
+                                    "",
+                                    PlotPoint::new(0.5 * (xd + xb), d.energy_after),
+                                    format!(
+                                        "DSM Δv {:.3} · ΔE {:+.1}",
+                                        d.dv_km_s,
+                                        d.energy_after - d.energy_before
+                                    ),
+                                )
+                                .anchor(egui::Align2::CENTER_TOP)
+                                .color(color),
+                            );
                         }
-                        None => vec![[xa, a.energy_after], [xb, b.energy_before]],
-                    };
-                    pl.line(
-                        Line::new(format!("leg {}", k + 1), PlotPoints::from(pts))
-                            .color(style::leg_color(k))
-                            .width(3.0),
-                    );
-                    if let Some(d) = leg.dsm {
-                        let xd = d.t.days() - t0;
-                        pl.points(
-                            Points::new(
-                                format!("DSM leg {}", k + 1),
-                                PlotPoints::from(vec![[xd, d.energy_after]]),
-                            )
-                            .shape(MarkerShape::Cross)
-                            .radius(7.0)
-                            .color(style::leg_color(k)),
-                        );
+                        None => pl.line(piece(xa, xb, a.energy_after)),
+                    }
+                    if missing {
                         pl.text(
                             Text::new(
                                 "",
-                                PlotPoint::new(xd, d.energy_after),
-                                format!(
-                                    "DSM Δv {:.3}\nΔE {:+.1}",
-                                    d.dv_km_s,
-                                    d.energy_after - d.energy_before
-                                ),
+                                PlotPoint::new(xb, b.energy_before),
+                                format!("misses {}", name(k + 1)),
                             )
-                            .anchor(egui::Align2::LEFT_TOP),
+                            .anchor(egui::Align2::RIGHT_BOTTOM)
+                            .color(style::warn_color(vc.dark)),
                         );
                     }
                 }
-                for (k, s) in e.stops.iter().enumerate() {
+                for (k, s) in e.stops.iter().enumerate().take(reached) {
                     let x = s.epoch.days() - t0;
                     let col = style::body_color(&name(k));
                     if s.kind == StopKind::SwingBy {
@@ -121,7 +166,8 @@ impl LadderView {
                         s.energy_after
                     };
                     pl.points(
-                        Points::new(name(k), PlotPoints::from(vec![[x, y]]))
+                        // Unnamed: labelled beside the point, kept out of the legend.
+                        Points::new("", PlotPoints::from(vec![[x, y]]))
                             .shape(match s.kind {
                                 StopKind::Launch => MarkerShape::Up,
                                 StopKind::SwingBy => MarkerShape::Diamond,
@@ -134,9 +180,14 @@ impl LadderView {
                     if s.kind == StopKind::SwingBy {
                         label.push_str(&format!("\nΔE {:+.1}", s.gain()));
                     }
+                    // Neighbouring labels on opposite sides of their points, so close stops'
+                    // labels do not overlap.
                     pl.text(
-                        Text::new("", PlotPoint::new(x, y), label)
-                            .anchor(egui::Align2::LEFT_BOTTOM),
+                        Text::new("", PlotPoint::new(x, y), label).anchor(if k % 2 == 0 {
+                            egui::Align2::LEFT_BOTTOM
+                        } else {
+                            egui::Align2::RIGHT_TOP
+                        }),
                     );
                 }
             });
@@ -146,7 +197,7 @@ impl LadderView {
             .x_axis_label("days from launch")
             .y_axis_label("speed (km/s)")
             .show(ui, |pl| {
-                for (k, leg) in e.legs.iter().enumerate() {
+                for (k, leg) in e.legs.iter().enumerate().take(reached) {
                     let series: Vec<[f64; 2]> = e.samples[leg.samples.clone()]
                         .iter()
                         .map(|s| [s.t.days() - t0, s.state.v.norm()])
@@ -160,9 +211,11 @@ impl LadderView {
                         .width(2.0),
                     );
                 }
+                let last_t = e.stops.get(reached).map(|s| s.epoch.0);
                 let escape: Vec<[f64; 2]> = e
                     .samples
                     .iter()
+                    .filter(|s| last_t.is_none_or(|l| s.t.0 <= l))
                     .map(|s| [s.t.days() - t0, escape_speed(tour.mu_sun, s.state.r.norm())])
                     .collect();
                 pl.line(
@@ -173,6 +226,7 @@ impl LadderView {
                 let vinf: Vec<[f64; 2]> = e
                     .stops
                     .iter()
+                    .take(reached)
                     .map(|s| [s.epoch.days() - t0, s.vinf()])
                     .collect();
                 pl.points(
@@ -182,5 +236,14 @@ impl LadderView {
                 );
             });
         Vec::new()
+    }
+}
+
+/// The legend's corner: the bottom right when the tour climbs in energy (the first stop sits low
+/// on the left, the last high on the right), the top right when it descends.
+fn legend_corner(e: &tourwright_mission::evaluate::Evaluation) -> egui_plot::Corner {
+    match (e.stops.first(), e.stops.last()) {
+        (Some(a), Some(b)) if b.energy_before < a.energy_after => egui_plot::Corner::RightTop,
+        _ => egui_plot::Corner::RightBottom,
     }
 }

@@ -37,10 +37,14 @@ impl LensView {
         let swingbys: Vec<usize> = (0..e.stops.len())
             .filter(|&k| e.stops[k].kind == StopKind::SwingBy)
             .collect();
-        ui.horizontal(|ui| {
+        let unreached = e.first_unreached().unwrap_or(usize::MAX);
+        ui.horizontal_wrapped(|ui| {
             ui.label("Swing-by:");
             for &k in &swingbys {
-                let label = format!("{} {}", k + 1, tour.stops[k].body.name);
+                let mut label = format!("{} {}", k + 1, tour.stops[k].body.name);
+                if k >= unreached {
+                    label.push_str(" (not reached)");
+                }
                 if ui.selectable_label(vc.selected == k, label).clicked() {
                     out.push(Action::Select(k));
                 }
@@ -57,6 +61,10 @@ impl LensView {
         } else {
             swingbys[0]
         };
+        if k >= unreached {
+            not_reached(ui, vc, k, unreached, &mut out);
+            return out;
+        }
         let Some(sw) = e.stops.get(k).and_then(|s| s.swingby) else {
             ui.label("The swing-by could not be evaluated; see the warnings.");
             return out;
@@ -181,7 +189,16 @@ impl LensView {
             }
             if h_resp.dragged() {
                 if let Some(p) = h_resp.interact_pointer_pos() {
-                    let rp_new = (p.distance(pc) as f64 * km_per_pt).max(r_body * 0.2);
+                    // Shift: a fine drag, one tenth of the pointer's radial motion, from the
+                    // altitude the design has now.
+                    let fine = ui.input(|i| i.modifiers.shift);
+                    let rp_new = if fine {
+                        let radial = h_resp.drag_delta().dot((pp - pc).normalized()) as f64;
+                        rp + FINE * radial * km_per_pt
+                    } else {
+                        p.distance(pc) as f64 * km_per_pt
+                    }
+                    .max(r_body * 0.2);
                     let aim_deg = match vc.design.stops[k].swingby.mode {
                         SwingbyMode::Shaped { aim_deg, .. } => aim_deg,
                         SwingbyMode::Targeted => {
@@ -202,7 +219,8 @@ impl LensView {
                 out.push(Action::CommitGesture);
             }
             h_resp.on_hover_text(
-                "Drag to change the periapsis altitude (switches a targeted swing-by to shaped)",
+                "Drag to change the periapsis altitude (switches a targeted swing-by to shaped); \
+                 hold Shift for a fine drag",
             );
             painter.text(
                 rect.left_bottom() + vec2(8.0, -8.0),
@@ -224,6 +242,41 @@ impl LensView {
         });
         out
     }
+}
+
+/// A fine drag (Shift held) moves by this fraction of the pointer's motion.
+pub const FINE: f64 = 0.1;
+
+/// A swing-by the spacecraft does not reach: say why, and offer the way back.
+fn not_reached(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, unreached: usize, out: &mut Actions) {
+    let from = unreached.saturating_sub(1);
+    let name = |j: usize| {
+        vc.tour
+            .map_or(String::new(), |t| t.stops[j].body.name.to_string())
+    };
+    let miss = vc
+        .eval
+        .stops
+        .get(from)
+        .and_then(|s| s.swingby)
+        .and_then(|s| s.miss_km);
+    ui.label(
+        RichText::new(format!(
+            "! Stop {} ({}) is not reached: the shaped swing-by at stop {} ({}) misses {} by {} \
+             km, so the spacecraft never gets here and this swing-by has no figures.",
+            k + 1,
+            name(k),
+            from + 1,
+            name(from),
+            name(unreached),
+            miss.map_or("?".into(), |m| style::fixed(m, 0)),
+        ))
+        .color(style::warn_color(vc.dark)),
+    );
+    if ui.button(format!("Go to stop {}", from + 1)).clicked() {
+        out.push(Action::Select(from));
+    }
+    shared::retarget_row(ui, vc, from, out);
 }
 
 fn aim_dial(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, w: f32, out: &mut Actions) {
@@ -276,7 +329,16 @@ fn aim_dial(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, w: f32, out: &mut Act
     if resp.dragged() {
         if let Some(p) = resp.interact_pointer_pos() {
             let v = p - c;
-            let aim_deg = (v.y as f64).atan2(v.x as f64).to_degrees();
+            let pointer_deg = (v.y as f64).atan2(v.x as f64).to_degrees();
+            // Shift: a fine drag, one tenth of the pointer's turn about the centre.
+            let aim_deg = if ui.input(|i| i.modifiers.shift) {
+                let before = v - resp.drag_delta();
+                let turn = pointer_deg - (before.y as f64).atan2(before.x as f64).to_degrees();
+                let turn = (turn + 540.0).rem_euclid(360.0) - 180.0;
+                (aim as f64).to_degrees() + FINE * turn
+            } else {
+                pointer_deg
+            };
             let altitude_km = match vc.design.stops[k].swingby.mode {
                 SwingbyMode::Shaped { altitude_km, .. } => altitude_km,
                 SwingbyMode::Targeted => sw.altitude_km.unwrap_or(10_000.0),
@@ -294,7 +356,8 @@ fn aim_dial(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, w: f32, out: &mut Act
         out.push(Action::CommitGesture);
     }
     resp.on_hover_text(
-        "Drag around the dial to turn the aim (the direction of B from T towards R)",
+        "Drag around the dial to turn the aim (the direction of B from T towards R); hold Shift \
+         for a fine drag",
     );
 }
 

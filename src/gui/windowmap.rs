@@ -11,7 +11,7 @@ use eframe::egui::{
 };
 
 use tourwright_astro::time::{Epoch, Tdb};
-use tourwright_mission::design::LegOptions;
+use tourwright_mission::design::{EphemerisChoice, LegOptions};
 use tourwright_mission::{Edit, MissionDesign};
 use tourwright_search::window::{Quantity, SecondAxis, WindowMap, WindowSpec};
 
@@ -56,6 +56,9 @@ pub struct WindowView {
     pub error: Option<String>,
     /// Compute as soon as the view is shown (after the form was centred on a leg).
     pub auto: bool,
+    /// The ephemeris model of the design the map was computed with (set when it is started).
+    map_model: Option<EphemerisChoice>,
+    pending_model: Option<EphemerisChoice>,
     texture: Option<(TextureHandle, Quantity, u64)>,
     contours: Option<(Quantity, u64, LevelLines)>,
     map_id: u64,
@@ -81,6 +84,8 @@ impl Default for WindowView {
             view: None,
             error: None,
             auto: true,
+            map_model: None,
+            pending_model: None,
             texture: None,
             contours: None,
             map_id: 0,
@@ -93,6 +98,7 @@ impl WindowView {
     /// Show a newly computed map.
     pub fn set_map(&mut self, m: WindowMap) {
         self.map = Some(std::sync::Arc::new(m));
+        self.map_model = self.pending_model.take();
         self.map_id += 1;
         self.view = None;
     }
@@ -263,6 +269,7 @@ impl WindowView {
             }
             Ok(spec) => {
                 self.error = None;
+                self.pending_model = Some(vc.design.ephemeris.clone());
                 Some(Action::StartJob(JobRequest::Window(spec)))
             }
         }
@@ -401,36 +408,96 @@ impl WindowView {
         out
     }
 
+    /// Why the map shown no longer stands for the chosen leg of the design (None: it does). The
+    /// one rule for the banner and for clicks: the leg's bodies, its revolutions and branch, and
+    /// the ephemeris model must be those the map was computed for.
+    pub fn stale_reason(&self, vc: &ViewCtx<'_>, map: &WindowMap) -> Option<String> {
+        let k = self.leg?;
+        let d = vc.design;
+        if k + 1 >= d.stops.len()
+            || !d.stops[k].body.eq_ignore_ascii_case(&map.spec.from)
+            || !d.stops[k + 1].body.eq_ignore_ascii_case(&map.spec.to)
+        {
+            return Some(format!(
+                "this map is for {} to {}, not for leg {} of the design as it is now",
+                map.spec.from,
+                map.spec.to,
+                k + 1
+            ));
+        }
+        let leg = d.leg(k);
+        if leg.revolutions != map.spec.leg.revolutions
+            || (leg.revolutions > 0 && leg.branch != map.spec.leg.branch)
+        {
+            return Some(format!(
+                "leg {} now flies {} revolutions ({:?} branch); the map was computed for {}",
+                k + 1,
+                leg.revolutions,
+                leg.branch,
+                map.spec.leg.revolutions
+            ));
+        }
+        if self.map_model.as_ref().is_some_and(|m| *m != d.ephemeris) {
+            return Some("the design's ephemeris model changed since the map was computed".into());
+        }
+        None
+    }
+
+    /// The map: a stale banner, the colour-scale row, then the canvas drawn in named steps.
     fn canvas(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         let dark = vc.dark;
-        let q = self.quantity;
         // Shared, not copied: the map can hold a million cells.
         let map = self.map.clone().expect("checked");
-        // A map for another pair of bodies than the chosen leg's is stale: say so (its clicks
-        // set nothing; see `click`).
-        if let Some(k) = self.leg {
-            let d = vc.design;
-            let fits = k + 1 < d.stops.len()
-                && d.stops[k].body.eq_ignore_ascii_case(&map.spec.from)
-                && d.stops[k + 1].body.eq_ignore_ascii_case(&map.spec.to);
-            if !fits {
-                ui.label(
-                    RichText::new(format!(
-                        "! Stale: this map is for {} to {}, not for leg {} of the design as it is \
-                         now. Compute it again; clicks on it set no dates.",
-                        map.spec.from,
-                        map.spec.to,
-                        k + 1
-                    ))
-                    .color(style::warn_color(dark)),
-                );
-            }
+        if let Some(why) = self.stale_reason(vc, &map) {
+            ui.label(
+                RichText::new(format!(
+                    "! Stale: {why}. Compute it again; clicks on it set no dates."
+                ))
+                .color(style::warn_color(dark)),
+            );
         }
-        let (nx, ny) = (map.spec.nx, map.spec.ny);
-        let id = self.map_id;
-        // Colour range from the minimum to a cap; the percentiles are computed once per map and
-        // quantity, not every frame. The cap defaults to min + 3 × (30th percentile − min): the
-        // 180° ridge and the far corners would otherwise squash the useful part of the scale.
+        let Some((lo, auto_cap, hi)) = self.colour_range(&map) else {
+            ui.label("No cell has a solution for these dates.");
+            return;
+        };
+        let cap = self.scale_row(ui, &map, lo, auto_cap, hi);
+        self.ensure_texture(ui, &map, lo, cap, dark);
+        self.ensure_contours(&map, lo, cap);
+        let (resp, painter) = ui.allocate_painter(ui.available_size(), Sense::click_and_drag());
+        let g = Grid::new(&resp, &map, self.view);
+        let p2 = painter.with_clip_rect(g.plot);
+        let text_c = if dark {
+            Color32::from_gray(210)
+        } else {
+            Color32::from_gray(40)
+        };
+        if let Some((tex, ..)) = &self.texture {
+            // The texture spans cell centres 0..n-1 over half a cell beyond.
+            let a = g.to_screen(-0.5, -0.5);
+            let b = g.to_screen((g.nx - 1) as f32 + 0.5, (g.ny - 1) as f32 + 0.5);
+            p2.image(
+                tex.id(),
+                Rect::from_two_pos(a, b),
+                Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)),
+                Color32::WHITE,
+            );
+        }
+        if let Some((_, _, lines)) = &self.contours {
+            draw_contours(&p2, &g, lines, dark);
+        }
+        draw_tof_lines(&p2, &g, &map);
+        self.draw_markers(&p2, &g, &map, vc);
+        draw_axes(&painter, &g, &map, text_c);
+        draw_colour_bar(&painter, &g, lo, cap, text_c);
+        self.interact(ui, &resp, &g, &map, vc, out);
+    }
+
+    /// Colour range from the minimum to a cap; the percentiles are computed once per map and
+    /// quantity, not every frame. The cap defaults to min + 3 × (30th percentile − min): the 180°
+    /// ridge and the far corners would otherwise squash the useful part of the scale. Returns
+    /// (min, automatic cap, max).
+    fn colour_range(&mut self, map: &WindowMap) -> Option<(f64, f64, f64)> {
+        let (q, id) = (self.quantity, self.map_id);
         if self.stats.is_none_or(|s| s.0 != q || s.1 != id) {
             let mut vals: Vec<f64> = map
                 .cells
@@ -451,17 +518,25 @@ impl WindowView {
                 )
             });
         }
-        let Some((_, _, lo, auto_cap, hi)) = self.stats else {
-            ui.label("No cell has a solution for these dates.");
-            return;
-        };
-        let mut cap = self.cap.unwrap_or(auto_cap);
-        ui.horizontal(|ui| {
+        self.stats.map(|(_, _, lo, cap, hi)| (lo, cap, hi))
+    }
+
+    /// The colour-scale cap (editable, or automatic) and the minimum's read-out; returns the cap.
+    fn scale_row(
+        &mut self,
+        ui: &mut egui::Ui,
+        map: &WindowMap,
+        lo: f64,
+        auto: f64,
+        hi: f64,
+    ) -> f64 {
+        let mut cap = self.cap.unwrap_or(auto);
+        ui.horizontal_wrapped(|ui| {
             if style::labelled(
                 ui,
                 "colour scale up to",
                 egui::DragValue::new(&mut cap)
-                    .speed((auto_cap - lo) * 0.01)
+                    .speed((auto - lo) * 0.01)
                     .range(lo..=hi),
             )
             .changed()
@@ -475,7 +550,7 @@ impl WindowView {
                 self.texture = None;
                 self.contours = None;
             }
-            if let Some((i, j, v)) = map.minimum(q) {
+            if let Some((i, j, v)) = map.minimum(self.quantity) {
                 let (a, b) = map.epochs(i, j);
                 ui.label(format!(
                     "minimum {v:.3} · depart {} · arrive {} · {:.0} d",
@@ -485,49 +560,55 @@ impl WindowView {
                 ));
             }
         });
-        // Texture.
-        let need_tex = self
+        self.cap.unwrap_or(auto)
+    }
+
+    /// The colour image of the map, rebuilt only for a new map, quantity or cap.
+    fn ensure_texture(&mut self, ui: &egui::Ui, map: &WindowMap, lo: f64, cap: f64, dark: bool) {
+        let (q, id) = (self.quantity, self.map_id);
+        if !self
             .texture
             .as_ref()
-            .is_none_or(|(_, tq, tid)| *tq != q || *tid != id);
-        if need_tex {
-            let mut img = egui::ColorImage::new([nx, ny], vec![Color32::TRANSPARENT; nx * ny]);
-            for j in 0..ny {
-                for i in 0..nx {
-                    let c = map.cell(i, j);
-                    // Row 0 of the image is the top: highest second-axis value.
-                    let px = &mut img.pixels[(ny - 1 - j) * nx + i];
-                    *px = if c.solved {
-                        let t = ((q.of(c) - lo) / (cap - lo)) as f32;
-                        if t > 1.0 {
-                            if dark {
-                                Color32::from_gray(40)
-                            } else {
-                                Color32::from_gray(225)
-                            }
-                        } else {
-                            style::ramp(t)
-                        }
-                    } else if dark {
-                        Color32::from_gray(22)
-                    } else {
-                        Color32::from_gray(240)
-                    };
-                }
-            }
-            let tex = ui
-                .ctx()
-                .load_texture("window-map", img, egui::TextureOptions::NEAREST);
-            self.texture = Some((tex, q, id));
+            .is_none_or(|(_, tq, tid)| *tq != q || *tid != id)
+        {
+            return;
         }
-        let need_contours = self
+        let (nx, ny) = (map.spec.nx, map.spec.ny);
+        let mut img = egui::ColorImage::new([nx, ny], vec![Color32::TRANSPARENT; nx * ny]);
+        let (over, none) = if dark {
+            (Color32::from_gray(40), Color32::from_gray(22))
+        } else {
+            (Color32::from_gray(225), Color32::from_gray(240))
+        };
+        for j in 0..ny {
+            for i in 0..nx {
+                let c = map.cell(i, j);
+                // Row 0 of the image is the top: highest second-axis value.
+                img.pixels[(ny - 1 - j) * nx + i] = if c.solved {
+                    let t = ((q.of(c) - lo) / (cap - lo)) as f32;
+                    if t > 1.0 { over } else { style::ramp(t) }
+                } else {
+                    none
+                };
+            }
+        }
+        let tex = ui
+            .ctx()
+            .load_texture("window-map", img, egui::TextureOptions::NEAREST);
+        self.texture = Some((tex, q, id));
+    }
+
+    /// The contour lines, rebuilt only for a new map or quantity.
+    fn ensure_contours(&mut self, map: &WindowMap, lo: f64, cap: f64) {
+        let (q, id) = (self.quantity, self.map_id);
+        if self
             .contours
             .as_ref()
-            .is_none_or(|(cq, cid, _)| *cq != q || *cid != id);
-        if need_contours {
+            .is_none_or(|(cq, cid, _)| *cq != q || *cid != id)
+        {
             let lines = contour_lines(
-                nx,
-                ny,
+                map.spec.nx,
+                map.spec.ny,
                 |i, j| {
                     let c = map.cell(i, j);
                     c.solved.then(|| q.of(c))
@@ -536,135 +617,12 @@ impl WindowView {
             );
             self.contours = Some((q, id, lines));
         }
-        // Canvas with margins for axes.
-        let size = ui.available_size();
-        let (resp, painter) = ui.allocate_painter(size, Sense::click_and_drag());
-        let full = resp.rect;
-        let plot = Rect::from_min_max(full.min + vec2(70.0, 10.0), full.max - vec2(80.0, 40.0));
-        let view = self
-            .view
-            .unwrap_or(Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)));
-        // Grid coords (i, j) -> normalised (u, v) -> screen.
-        let to_screen = |gi: f32, gj: f32| -> Pos2 {
-            let u = gi / (nx - 1) as f32;
-            let v = gj / (ny - 1) as f32;
-            pos2(
-                plot.left() + (u - view.min.x) / view.width() * plot.width(),
-                plot.bottom() - (v - view.min.y) / view.height() * plot.height(),
-            )
-        };
-        let from_screen = |p: Pos2| -> (f32, f32) {
-            let u = view.min.x + (p.x - plot.left()) / plot.width() * view.width();
-            let v = view.min.y + (plot.bottom() - p.y) / plot.height() * view.height();
-            (u, v)
-        };
-        let p2 = painter.with_clip_rect(plot);
-        if let Some((tex, ..)) = &self.texture {
-            // The texture spans cell centres 0..n-1 over half a cell beyond.
-            let a = to_screen(-0.5, -0.5);
-            let b = to_screen((nx - 1) as f32 + 0.5, (ny - 1) as f32 + 0.5);
-            p2.image(
-                tex.id(),
-                Rect::from_two_pos(a, b),
-                Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0)),
-                Color32::WHITE,
-            );
-        }
-        let line_c = if dark {
-            Color32::from_rgba_unmultiplied(255, 255, 255, 170)
-        } else {
-            Color32::from_rgba_unmultiplied(0, 0, 0, 160)
-        };
-        if let Some((_, _, lines)) = &self.contours {
-            for (_, l) in lines {
-                let pts: Vec<Pos2> = l.iter().map(|p| to_screen(p[0], p[1])).collect();
-                p2.add(egui::Shape::line(pts, Stroke::new(1.0, line_c)));
-            }
-            // One label per level: along each line from its middle outwards, the first visible
-            // spot at least 40 points away from labels already placed.
-            let mut best: Vec<(f64, f32, Pos2)> = Vec::new();
-            for (lv, l) in lines {
-                if best.iter().any(|b| b.0 == *lv) {
-                    continue;
-                }
-                let mid = l.len() / 2;
-                let order = (0..l.len()).map(|k| {
-                    if k % 2 == 0 {
-                        mid + k / 2
-                    } else {
-                        mid.saturating_sub(k / 2 + 1)
-                    }
-                });
-                for idx in order.filter(|i| *i < l.len()) {
-                    let a = to_screen(l[idx][0], l[idx][1]);
-                    if plot.shrink(16.0).contains(a) && best.iter().all(|b| b.2.distance(a) > 40.0)
-                    {
-                        best.push((*lv, 0.0, a));
-                        break;
-                    }
-                }
-            }
-            let bg = if dark {
-                Color32::from_rgba_unmultiplied(0, 0, 0, 150)
-            } else {
-                Color32::from_rgba_unmultiplied(255, 255, 255, 170)
-            };
-            for (lv, _, a) in best {
-                let r = p2.text(
-                    a,
-                    Align2::CENTER_CENTER,
-                    format!("{lv}"),
-                    FontId::proportional(11.0),
-                    line_c,
-                );
-                p2.rect_filled(r.expand(1.0), 2.0, bg);
-                p2.text(
-                    a,
-                    Align2::CENTER_CENTER,
-                    format!("{lv}"),
-                    FontId::proportional(11.0),
-                    line_c,
-                );
-            }
-        }
-        // Lines of constant TOF when both axes are dates.
-        let text_c = if dark {
-            Color32::from_gray(210)
-        } else {
-            Color32::from_gray(40)
-        };
-        if let SecondAxis::Arrival(a0, a1) = map.spec.second {
-            let (d0, d1) = (map.depart[0].days(), map.depart[nx - 1].days());
-            let (r0, r1) = (a0.days(), a1.days());
-            let tmin = (r0 - d1).max(1.0);
-            let tmax = r1 - d0;
-            for t in nice_levels(tmin, tmax, 6) {
-                // arrive = depart + t: endpoints across the departure range.
-                let gi = |dd: f64| ((dd - d0) / (d1 - d0) * (nx - 1) as f64) as f32;
-                let gj = |rr: f64| ((rr - r0) / (r1 - r0) * (ny - 1) as f64) as f32;
-                let a = to_screen(gi(d0), gj(d0 + t));
-                let b = to_screen(gi(d1), gj(d1 + t));
-                p2.extend(egui::Shape::dashed_line(
-                    &[a, b],
-                    Stroke::new(1.0, style::SUN),
-                    6.0,
-                    5.0,
-                ));
-                let mid = pos2(0.5 * (a.x + b.x), 0.5 * (a.y + b.y));
-                if plot.contains(mid) {
-                    p2.text(
-                        mid,
-                        Align2::LEFT_BOTTOM,
-                        format!("{t:.0} d"),
-                        FontId::proportional(11.0),
-                        style::SUN,
-                    );
-                }
-            }
-        }
-        // Minimum marker.
-        if let Some((i, j, _)) = map.minimum(q) {
-            let p = to_screen(i as f32, j as f32);
+    }
+
+    /// The map's minimum and the design's own leg dates.
+    fn draw_markers(&self, p2: &egui::Painter, g: &Grid, map: &WindowMap, vc: &ViewCtx<'_>) {
+        if let Some((i, j, _)) = map.minimum(self.quantity) {
+            let p = g.to_screen(i as f32, j as f32);
             p2.circle_stroke(p, 7.0, Stroke::new(2.0, Color32::WHITE));
             p2.line_segment(
                 [p - vec2(10.0, 0.0), p + vec2(10.0, 0.0)],
@@ -675,146 +633,69 @@ impl WindowView {
                 Stroke::new(1.5, Color32::BLACK),
             );
         }
-        // The design's own leg dates.
-        if let Some(k) = self.leg {
-            if k + 1 < vc.design.stops.len() {
-                let (a, b) = (
-                    vc.design.stops[k].epoch.tdb(),
-                    vc.design.stops[k + 1].epoch.tdb(),
-                );
-                let gi = ((a.days() - map.depart[0].days())
-                    / (map.depart[nx - 1].days() - map.depart[0].days())
-                    * (nx - 1) as f64) as f32;
-                let yv = match map.spec.second {
-                    SecondAxis::Arrival(..) => b.mjd2000(),
-                    SecondAxis::Tof(..) => b.days() - a.days(),
-                };
-                let gj = ((yv - map.second[0]) / (map.second[ny - 1] - map.second[0])
-                    * (ny - 1) as f64) as f32;
-                let p = to_screen(gi, gj);
-                style::stop_marker(
-                    &p2,
-                    p,
-                    tourwright_mission::evaluate::StopKind::SwingBy,
-                    style::leg_color(k),
-                    7.0,
-                    Color32::WHITE,
-                );
-            }
-        }
-        // Axes.
-        painter.rect_stroke(
-            plot,
-            0.0,
-            Stroke::new(1.0, text_c),
-            egui::StrokeKind::Outside,
+        let Some(k) = self.leg.filter(|k| k + 1 < vc.design.stops.len()) else {
+            return;
+        };
+        let (nx, ny) = (g.nx, g.ny);
+        let (a, b) = (
+            vc.design.stops[k].epoch.tdb(),
+            vc.design.stops[k + 1].epoch.tdb(),
         );
-        for f in [0.0f32, 0.25, 0.5, 0.75, 1.0] {
-            let u = view.min.x + f * view.width();
-            let i = (u * (nx - 1) as f32).round().clamp(0.0, (nx - 1) as f32) as usize;
-            let x = plot.left() + f * plot.width();
-            painter.text(
-                pos2(x, plot.bottom() + 4.0),
-                Align2::CENTER_TOP,
-                map.depart[i].to_date_utc(),
-                FontId::proportional(11.0),
-                text_c,
-            );
-            let v = view.min.y + f * view.height();
-            let j = (v * (ny - 1) as f32).round().clamp(0.0, (ny - 1) as f32) as usize;
-            let y = plot.bottom() - f * plot.height();
-            let label = match map.spec.second {
-                SecondAxis::Arrival(..) => Tdb::from_mjd2000(map.second[j]).to_date_utc(),
-                SecondAxis::Tof(..) => format!("{:.0} d", map.second[j]),
-            };
-            painter.text(
-                pos2(plot.left() - 4.0, y),
-                Align2::RIGHT_CENTER,
-                label,
-                FontId::proportional(11.0),
-                text_c,
-            );
-        }
-        painter.text(
-            pos2(plot.center().x, full.bottom() - 2.0),
-            Align2::CENTER_BOTTOM,
-            format!("departure from {} (UTC)", map.spec.from),
-            FontId::proportional(12.0),
-            text_c,
+        let gi = ((a.days() - map.depart[0].days())
+            / (map.depart[nx - 1].days() - map.depart[0].days())
+            * (nx - 1) as f64) as f32;
+        let yv = match map.spec.second {
+            SecondAxis::Arrival(..) => b.mjd2000(),
+            SecondAxis::Tof(..) => b.days() - a.days(),
+        };
+        let gj =
+            ((yv - map.second[0]) / (map.second[ny - 1] - map.second[0]) * (ny - 1) as f64) as f32;
+        style::stop_marker(
+            p2,
+            g.to_screen(gi, gj),
+            tourwright_mission::evaluate::StopKind::SwingBy,
+            style::leg_color(k),
+            7.0,
+            Color32::WHITE,
         );
-        // Colour bar.
-        let bar = Rect::from_min_max(
-            pos2(plot.right() + 12.0, plot.top()),
-            pos2(plot.right() + 26.0, plot.bottom()),
-        );
-        for s in 0..64 {
-            let t0 = s as f32 / 64.0;
-            let r = Rect::from_min_max(
-                pos2(bar.left(), bar.bottom() - (t0 + 1.0 / 64.0) * bar.height()),
-                pos2(bar.right(), bar.bottom() - t0 * bar.height()),
-            );
-            painter.rect_filled(r, 0.0, style::ramp(t0));
-        }
-        painter.text(
-            bar.right_top() + vec2(3.0, 0.0),
-            Align2::LEFT_TOP,
-            format!("{cap:.1}"),
-            FontId::proportional(11.0),
-            text_c,
-        );
-        painter.text(
-            bar.right_bottom() + vec2(3.0, 0.0),
-            Align2::LEFT_BOTTOM,
-            format!("{lo:.1}"),
-            FontId::proportional(11.0),
-            text_c,
-        );
-        // Interaction: zoom, pan, hover, click.
+    }
+
+    /// Zoom (wheel about the pointer), pan (drag), reset (double click), hover read-out, click.
+    fn interact(
+        &mut self,
+        ui: &egui::Ui,
+        resp: &egui::Response,
+        g: &Grid,
+        map: &WindowMap,
+        vc: &ViewCtx<'_>,
+        out: &mut Actions,
+    ) {
+        let view = g.view;
         if resp.hovered() {
             let scroll = ui.input(|i| i.smooth_scroll_delta.y);
-            if scroll != 0.0 {
-                if let Some(p) = resp.hover_pos() {
-                    let (u, v) = from_screen(p);
-                    let f = (1.0 - scroll * 0.002).clamp(0.5, 1.5);
-                    let nv = Rect::from_min_max(
-                        pos2(u - (u - view.min.x) * f, v - (v - view.min.y) * f),
-                        pos2(u + (view.max.x - u) * f, v + (view.max.y - v) * f),
-                    );
-                    self.view = Some(nv);
-                }
+            if let (true, Some(p)) = (scroll != 0.0, resp.hover_pos()) {
+                let (u, v) = g.normalised(p);
+                let f = (1.0 - scroll * 0.002).clamp(0.5, 1.5);
+                self.view = Some(Rect::from_min_max(
+                    pos2(u - (u - view.min.x) * f, v - (v - view.min.y) * f),
+                    pos2(u + (view.max.x - u) * f, v + (view.max.y - v) * f),
+                ));
             }
         }
         if resp.dragged() {
             let dd = resp.drag_delta();
-            let nv = view.translate(vec2(
-                -dd.x / plot.width() * view.width(),
-                dd.y / plot.height() * view.height(),
-            ));
-            self.view = Some(nv);
+            self.view = Some(view.translate(vec2(
+                -dd.x / g.plot.width() * view.width(),
+                dd.y / g.plot.height() * view.height(),
+            )));
         }
         if resp.double_clicked() {
             self.view = None;
         }
-        let cell_at = |p: Pos2| -> Option<(usize, usize)> {
-            if !plot.contains(p) {
-                return None;
-            }
-            let (u, v) = from_screen(p);
-            let i = (u * (nx - 1) as f32).round();
-            let j = (v * (ny - 1) as f32).round();
-            (i >= 0.0 && j >= 0.0 && (i as usize) < nx && (j as usize) < ny)
-                .then_some((i as usize, j as usize))
-        };
-        let hovered = resp.hover_pos().and_then(cell_at);
-        let clicked = if resp.clicked() {
-            resp.interact_pointer_pos().and_then(cell_at)
-        } else {
-            None
-        };
-        if let Some((i, j)) = hovered {
+        if let Some((i, j)) = resp.hover_pos().and_then(|p| g.cell_at(p)) {
             let c = *map.cell(i, j);
             let (a, b) = map.epochs(i, j);
-            resp.on_hover_ui_at_pointer(|ui| {
+            resp.clone().on_hover_ui_at_pointer(|ui| {
                 ui.label(format!(
                     "depart {} · arrive {} · {:.0} d",
                     a.to_date_utc(),
@@ -833,8 +714,10 @@ impl WindowView {
                 ui.label(RichText::new("click to set the leg's dates").weak());
             });
         }
-        if let Some((i, j)) = clicked {
-            out.push(self.click(vc, &map, i, j));
+        if resp.clicked() {
+            if let Some((i, j)) = resp.interact_pointer_pos().and_then(|p| g.cell_at(p)) {
+                out.push(self.click(vc, map, i, j));
+            }
         }
     }
 
@@ -848,16 +731,10 @@ impl WindowView {
                 true,
             );
         };
-        let d = vc.design;
-        if k + 1 >= d.stops.len()
-            || !d.stops[k].body.eq_ignore_ascii_case(&map.spec.from)
-            || !d.stops[k + 1].body.eq_ignore_ascii_case(&map.spec.to)
-        {
-            return Action::Status(
-                "the map's bodies are not those of the chosen leg".into(),
-                true,
-            );
+        if let Some(why) = self.stale_reason(vc, map) {
+            return Action::Status(format!("no dates set: {why}"), true);
         }
+        let d = vc.design;
         let scale = |s: usize| d.stops[s].epoch.scale();
         Action::Edit(Edit::SetLegEpochs {
             leg: k,
@@ -865,6 +742,214 @@ impl WindowView {
             arrive: Epoch::from_tdb(b, scale(k + 1)),
         })
     }
+}
+
+/// The map's plot area and the part of the grid shown: grid (i, j) to normalised (u, v) to screen.
+struct Grid {
+    full: Rect,
+    plot: Rect,
+    view: Rect,
+    nx: usize,
+    ny: usize,
+}
+
+impl Grid {
+    fn new(resp: &egui::Response, map: &WindowMap, view: Option<Rect>) -> Self {
+        let full = resp.rect;
+        Grid {
+            full,
+            // Margins for the axes' labels and the colour bar.
+            plot: Rect::from_min_max(full.min + vec2(70.0, 10.0), full.max - vec2(80.0, 40.0)),
+            view: view.unwrap_or(Rect::from_min_max(pos2(0.0, 0.0), pos2(1.0, 1.0))),
+            nx: map.spec.nx,
+            ny: map.spec.ny,
+        }
+    }
+    fn to_screen(&self, gi: f32, gj: f32) -> Pos2 {
+        let (plot, view) = (self.plot, self.view);
+        let u = gi / (self.nx - 1) as f32;
+        let v = gj / (self.ny - 1) as f32;
+        pos2(
+            plot.left() + (u - view.min.x) / view.width() * plot.width(),
+            plot.bottom() - (v - view.min.y) / view.height() * plot.height(),
+        )
+    }
+    fn normalised(&self, p: Pos2) -> (f32, f32) {
+        let (plot, view) = (self.plot, self.view);
+        let u = view.min.x + (p.x - plot.left()) / plot.width() * view.width();
+        let v = view.min.y + (plot.bottom() - p.y) / plot.height() * view.height();
+        (u, v)
+    }
+    fn cell_at(&self, p: Pos2) -> Option<(usize, usize)> {
+        if !self.plot.contains(p) {
+            return None;
+        }
+        let (u, v) = self.normalised(p);
+        let i = (u * (self.nx - 1) as f32).round();
+        let j = (v * (self.ny - 1) as f32).round();
+        (i >= 0.0 && j >= 0.0 && (i as usize) < self.nx && (j as usize) < self.ny)
+            .then_some((i as usize, j as usize))
+    }
+}
+
+/// Contour lines, with one label per level: along each line from its middle outwards, the first
+/// visible spot at least 40 points away from labels already placed.
+fn draw_contours(p2: &egui::Painter, g: &Grid, lines: &LevelLines, dark: bool) {
+    let line_c = if dark {
+        Color32::from_rgba_unmultiplied(255, 255, 255, 170)
+    } else {
+        Color32::from_rgba_unmultiplied(0, 0, 0, 160)
+    };
+    for (_, l) in lines {
+        let pts: Vec<Pos2> = l.iter().map(|p| g.to_screen(p[0], p[1])).collect();
+        p2.add(egui::Shape::line(pts, Stroke::new(1.0, line_c)));
+    }
+    let mut best: Vec<(f64, Pos2)> = Vec::new();
+    for (lv, l) in lines {
+        if best.iter().any(|b| b.0 == *lv) {
+            continue;
+        }
+        let mid = l.len() / 2;
+        let order = (0..l.len()).map(|k| {
+            if k % 2 == 0 {
+                mid + k / 2
+            } else {
+                mid.saturating_sub(k / 2 + 1)
+            }
+        });
+        for idx in order.filter(|i| *i < l.len()) {
+            let a = g.to_screen(l[idx][0], l[idx][1]);
+            if g.plot.shrink(16.0).contains(a) && best.iter().all(|b| b.1.distance(a) > 40.0) {
+                best.push((*lv, a));
+                break;
+            }
+        }
+    }
+    let bg = if dark {
+        Color32::from_rgba_unmultiplied(0, 0, 0, 150)
+    } else {
+        Color32::from_rgba_unmultiplied(255, 255, 255, 170)
+    };
+    for (lv, a) in best {
+        let galley = p2.layout_no_wrap(format!("{lv}"), FontId::proportional(11.0), line_c);
+        let r = Align2::CENTER_CENTER.anchor_size(a, galley.size());
+        p2.rect_filled(r.expand(1.0), 2.0, bg);
+        p2.galley(r.min, galley, line_c);
+    }
+}
+
+/// Lines of constant TOF when both axes are dates.
+fn draw_tof_lines(p2: &egui::Painter, g: &Grid, map: &WindowMap) {
+    let SecondAxis::Arrival(a0, a1) = map.spec.second else {
+        return;
+    };
+    let nx = g.nx;
+    let (d0, d1) = (map.depart[0].days(), map.depart[nx - 1].days());
+    let (r0, r1) = (a0.days(), a1.days());
+    let tmin = (r0 - d1).max(1.0);
+    let tmax = r1 - d0;
+    for t in nice_levels(tmin, tmax, 6) {
+        // arrive = depart + t: endpoints across the departure range.
+        let gi = |dd: f64| ((dd - d0) / (d1 - d0) * (nx - 1) as f64) as f32;
+        let gj = |rr: f64| ((rr - r0) / (r1 - r0) * (g.ny - 1) as f64) as f32;
+        let a = g.to_screen(gi(d0), gj(d0 + t));
+        let b = g.to_screen(gi(d1), gj(d1 + t));
+        p2.extend(egui::Shape::dashed_line(
+            &[a, b],
+            Stroke::new(1.0, style::SUN),
+            6.0,
+            5.0,
+        ));
+        let mid = pos2(0.5 * (a.x + b.x), 0.5 * (a.y + b.y));
+        if g.plot.contains(mid) {
+            p2.text(
+                mid,
+                Align2::LEFT_BOTTOM,
+                format!("{t:.0} d"),
+                FontId::proportional(11.0),
+                style::SUN,
+            );
+        }
+    }
+}
+
+/// The frame, five date labels on each axis, the departure axis' title.
+fn draw_axes(painter: &egui::Painter, g: &Grid, map: &WindowMap, text_c: Color32) {
+    let (plot, view) = (g.plot, g.view);
+    painter.rect_stroke(
+        plot,
+        0.0,
+        Stroke::new(1.0, text_c),
+        egui::StrokeKind::Outside,
+    );
+    for f in [0.0f32, 0.25, 0.5, 0.75, 1.0] {
+        let u = view.min.x + f * view.width();
+        let i = (u * (g.nx - 1) as f32)
+            .round()
+            .clamp(0.0, (g.nx - 1) as f32) as usize;
+        let x = plot.left() + f * plot.width();
+        painter.text(
+            pos2(x, plot.bottom() + 4.0),
+            Align2::CENTER_TOP,
+            map.depart[i].to_date_utc(),
+            FontId::proportional(11.0),
+            text_c,
+        );
+        let v = view.min.y + f * view.height();
+        let j = (v * (g.ny - 1) as f32)
+            .round()
+            .clamp(0.0, (g.ny - 1) as f32) as usize;
+        let y = plot.bottom() - f * plot.height();
+        let label = match map.spec.second {
+            SecondAxis::Arrival(..) => Tdb::from_mjd2000(map.second[j]).to_date_utc(),
+            SecondAxis::Tof(..) => format!("{:.0} d", map.second[j]),
+        };
+        painter.text(
+            pos2(plot.left() - 4.0, y),
+            Align2::RIGHT_CENTER,
+            label,
+            FontId::proportional(11.0),
+            text_c,
+        );
+    }
+    painter.text(
+        pos2(plot.center().x, g.full.bottom() - 2.0),
+        Align2::CENTER_BOTTOM,
+        format!("departure from {} (UTC)", map.spec.from),
+        FontId::proportional(12.0),
+        text_c,
+    );
+}
+
+/// The colour bar beside the plot, from the minimum to the cap.
+fn draw_colour_bar(painter: &egui::Painter, g: &Grid, lo: f64, cap: f64, text_c: Color32) {
+    let plot = g.plot;
+    let bar = Rect::from_min_max(
+        pos2(plot.right() + 12.0, plot.top()),
+        pos2(plot.right() + 26.0, plot.bottom()),
+    );
+    for s in 0..64 {
+        let t0 = s as f32 / 64.0;
+        let r = Rect::from_min_max(
+            pos2(bar.left(), bar.bottom() - (t0 + 1.0 / 64.0) * bar.height()),
+            pos2(bar.right(), bar.bottom() - t0 * bar.height()),
+        );
+        painter.rect_filled(r, 0.0, style::ramp(t0));
+    }
+    painter.text(
+        bar.right_top() + vec2(3.0, 0.0),
+        Align2::LEFT_TOP,
+        format!("{cap:.1}"),
+        FontId::proportional(11.0),
+        text_c,
+    );
+    painter.text(
+        bar.right_bottom() + vec2(3.0, 0.0),
+        Align2::LEFT_BOTTOM,
+        format!("{lo:.1}"),
+        FontId::proportional(11.0),
+        text_c,
+    );
 }
 
 #[cfg(test)]
