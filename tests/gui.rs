@@ -1175,3 +1175,283 @@ fn explorer_rows_show_their_objective_and_the_limits_they_break() {
         h.get_by_label_contains("broken: ");
     }
 }
+
+/// A harness of `size` on a sample, with the Search panel shown (the tightest layout).
+fn harness_sized(sample: usize, size: [f32; 2]) -> Harness<'static, TourwrightApp> {
+    let settings = Settings {
+        show_search: true,
+        ..Settings::default()
+    };
+    let (d, p) = sample_design(sample);
+    let mut app = TourwrightApp::with_design(d, p, settings);
+    app.native_dialogs = false;
+    let mut h = Harness::builder()
+        .with_size(size)
+        .build_ui_state(|ui, app: &mut TourwrightApp| app.ui(ui), app);
+    h.run_steps(3);
+    h
+}
+
+/// The node labelled `label` lies wholly inside the window.
+fn assert_inside(h: &Harness<'static, TourwrightApp>, label: &str, size: [f32; 2]) {
+    let window = eframe::egui::Rect::from_min_size(eframe::egui::Pos2::ZERO, size.into());
+    let r = h.get_by_label(label).rect();
+    assert!(
+        window.contains_rect(r),
+        "at {size:?}: '{label}' at {r:?} is outside the window"
+    );
+}
+
+/// The status line after the frames that follow an action.
+fn status(h: &Harness<'static, TourwrightApp>) -> String {
+    h.state()
+        .status
+        .as_ref()
+        .map(|s| s.0.clone())
+        .unwrap_or_default()
+}
+
+/// At laptop sizes, with every panel shown: each tab and each panel's key widget lies inside the
+/// window and answers a click at its centre (the clicks a user makes).
+#[test]
+fn every_tab_and_panel_fits_and_answers_clicks_at_laptop_sizes() {
+    use tourwright::gui::action::View;
+    for size in [[1024.0, 640.0], [1280.0, 800.0]] {
+        let mut h = harness_sized(0, size);
+        // Tabs: each inside, each click shows its view.
+        for v in View::ALL {
+            assert_inside(&h, v.title(), size);
+            h.get_by_label(v.title()).click();
+            h.run_steps(3);
+            assert_eq!(h.state().settings.view, v, "at {size:?}: tab {}", v.title());
+        }
+        // Fidelity: the job row's button starts the job, its cancel stops it, and the status
+        // line says it was cancelled.
+        assert_inside(&h, "Converge trajectory", size);
+        h.get_by_label("Converge trajectory").click();
+        h.run_steps(2);
+        assert!(!h.state().jobs.running.is_empty(), "at {size:?}: no job");
+        assert_inside(&h, "cancel", size);
+        h.get_by_label("cancel").click();
+        h.run_steps(1);
+        wait_for_jobs(&mut h);
+        assert!(
+            status(&h).contains("cancelled"),
+            "at {size:?}: status '{}'",
+            status(&h)
+        );
+        // Window map: the form's checkbox answers.
+        h.get_by_label(View::Window.title()).click();
+        h.run_steps(3);
+        assert_inside(&h, "TOF axis", size);
+        h.get_by_label("TOF axis").click();
+        h.run_steps(2);
+        assert!(h.state().views.window.use_tof, "at {size:?}: TOF axis");
+        wait_for_jobs(&mut h);
+        // Tisserand graph: a planet's checkbox answers.
+        h.get_by_label(View::Tisserand.title()).click();
+        h.run_steps(3);
+        assert_inside(&h, "Saturn", size);
+        // Sun view: "fit" resets the zoom.
+        h.get_by_label(View::Sun.title()).click();
+        h.run_steps(2);
+        h.state_mut().views.sun.zoom = 3.0;
+        assert_inside(&h, "fit", size);
+        h.get_by_label("fit").click();
+        h.run_steps(2);
+        assert_eq!(h.state().views.sun.zoom, 1.0, "at {size:?}: fit");
+        // Ledger: its button and its column header.
+        assert_inside(&h, "Copy table", size);
+        assert_inside(&h, "v∞ in (km/s)", size);
+        h.get_by_label("Copy table").click();
+        h.run_steps(2);
+        assert!(status(&h).contains("copied"), "at {size:?}: {}", status(&h));
+        // Tour panel: the first stop's "+ after".
+        let r = h.get_all_by_label("+ after").next().unwrap().rect();
+        assert!(
+            r.max.x <= size[0] && r.max.y <= size[1],
+            "at {size:?}: + after at {r:?}"
+        );
+        // Search panel: start the optimiser from its button and cancel it from its own.
+        assert_inside(&h, "Optimise dates", size);
+        h.get_by_label("Optimise dates").click();
+        h.run_steps(2);
+        assert!(
+            !h.state().jobs.running.is_empty(),
+            "at {size:?}: no optimiser"
+        );
+        assert_inside(&h, "Cancel", size);
+        h.get_by_label("Cancel").click();
+        h.run_steps(1);
+        wait_for_jobs(&mut h);
+        assert!(
+            status(&h).contains("cancelled"),
+            "at {size:?}: status '{}'",
+            status(&h)
+        );
+        // The menu bar's Search toggle hides the panel and shows it again.
+        h.get_all_by_label("Search").next().unwrap().click();
+        h.run_steps(2);
+        assert!(!h.state().settings.show_search);
+    }
+}
+
+/// The grip on the ledger's top edge resizes it, the height is kept in the settings, and the view
+/// above is not panned by that drag.
+#[test]
+fn the_ledger_is_resized_by_its_grip() {
+    let mut h = harness_sized(0, [1280.0, 800.0]);
+    h.get_by_label("Window map").click();
+    h.run_steps(3);
+    wait_for_jobs(&mut h);
+    let view_before = h.state().views.window.view;
+    let before = h.state().settings.ledger_height;
+    let top = h.get_by_label("Ledger").rect().top();
+    // The grip lies just above the heading: where the pointer turns into the resize cursor.
+    let band: Vec<f32> = (0..24)
+        .map(|d| top - d as f32)
+        .filter(|&y| {
+            h.hover_at(eframe::egui::pos2(640.0, y));
+            h.run_steps(1);
+            h.output().platform_output.cursor_icon == eframe::egui::CursorIcon::ResizeVertical
+        })
+        .collect();
+    assert!(!band.is_empty(), "the ledger offers no grip");
+    let grab = eframe::egui::pos2(640.0, band[band.len() / 2]);
+    h.hover_at(grab);
+    h.run_steps(1);
+    h.drag_at(grab);
+    h.run_steps(1);
+    for i in 1..=10 {
+        h.hover_at(grab - eframe::egui::vec2(0.0, 10.0 * i as f32));
+        h.run_steps(1);
+    }
+    h.drop_at(grab - eframe::egui::vec2(0.0, 100.0));
+    h.run_steps(3);
+    let moved = top - h.get_by_label("Ledger").rect().top();
+    assert!((moved - 100.0).abs() < 4.0, "the ledger grew by {moved}");
+    let after = h.state().settings.ledger_height;
+    assert!((after - before - 100.0).abs() < 4.0, "{before} -> {after}");
+    assert_eq!(
+        h.state().views.window.view,
+        view_before,
+        "the map was panned"
+    );
+    // The settings kept between runs carry the height.
+    let saved = serde_json::to_string(&h.state().settings).unwrap();
+    let back: Settings = serde_json::from_str(&saved).unwrap();
+    assert_eq!(back.ledger_height, after);
+}
+
+/// Past the cliff: a shaped swing-by moved so far that its ballistic leg misses the next body.
+/// The miss is a warning, and the stops after it are shown as not reached in the ledger, the lens
+/// and the ladder, with no flight figures.
+#[test]
+fn a_shaped_swingby_that_misses_marks_the_stops_after_it_not_reached() {
+    use tourwright::gui::action::{Action, View};
+    let mut h = harness(0);
+    assert!(h.state().eval.first_unreached().is_none());
+    let (alt, aim) = match h.state().design().stops[1].swingby.mode {
+        SwingbyMode::Shaped {
+            altitude_km,
+            aim_deg,
+        } => (altitude_km, aim_deg),
+        SwingbyMode::Targeted => panic!("Lantern's Venus swing-by is shaped"),
+    };
+    // As a 4-point drag of the periapsis does (+560 km).
+    h.state_mut().apply(Action::Edit(Edit::SetSwingbyMode {
+        stop: 1,
+        mode: SwingbyMode::Shaped {
+            altitude_km: alt + 560.0,
+            aim_deg: aim,
+        },
+    }));
+    h.run_steps(3);
+    let app = h.state();
+    assert_eq!(app.eval.first_unreached(), Some(2));
+    assert!(
+        app.eval
+            .warnings
+            .iter()
+            .any(|w| w.to_string().contains("not reached")),
+        "{:?}",
+        app.eval.warnings
+    );
+    let rows: Vec<_> = app
+        .events
+        .rows
+        .iter()
+        .filter(|r| tourwright::mission::report::is_unreached_row(r))
+        .collect();
+    // Earth (stop 3), the DSM on leg 3 and Jupiter.
+    assert_eq!(rows.len(), 3, "{:?}", app.events.rows);
+    for r in &rows {
+        // v∞ in, v∞ out, Δv, mass: no figures.
+        for c in [5, 6, 18, 19] {
+            assert_eq!(r[c].num(), None, "{r:?}");
+        }
+    }
+    h.get_by_label("Swing-by lens").click();
+    h.run_steps(3);
+    h.get_by_label("3 Earth (not reached)").click();
+    h.run_steps(3);
+    let _ = h.get_by_label_contains("is not reached: the shaped swing-by at stop 2");
+    h.get_by_label("Go to stop 2").click();
+    h.run_steps(3);
+    assert_eq!(h.state().selected, 1);
+    h.get_by_label(View::Ladder.title()).click();
+    h.run_steps(3);
+    let _ = h.get_by_label_contains("the swing-by at stop 2 misses it");
+    // Retarget from the lens puts the tour back together.
+    h.get_by_label(View::Lens.title()).click();
+    h.run_steps(2);
+    h.get_by_label("3 Earth (not reached)").click();
+    h.run_steps(3);
+    h.get_all_by_label("Retarget").last().unwrap().click();
+    h.run_steps(4);
+    assert!(h.state().eval.first_unreached().is_none(), "{}", status(&h));
+}
+
+/// Shift on the manoeuvre marker: a fine drag, a tenth of the pointer's motion along the leg.
+#[test]
+fn a_shift_drag_moves_the_manoeuvre_a_tenth_as_far() {
+    let mut h = harness(0);
+    h.get_all_by_label("+ DSM").next().unwrap().click();
+    h.run_steps(4);
+    let f0 = h.state().eval.legs[0].dsm.unwrap().fraction;
+    let drag = |h: &mut Harness<'static, TourwrightApp>, shift: bool| {
+        let start = h.state().views.sun.dsm_markers[0].1;
+        let venus = h.state().eval.stops[1].body_state.r;
+        let here = h.state().eval.legs[0].dsm.unwrap().r;
+        let dir =
+            eframe::egui::vec2((venus.x - here.x) as f32, -(venus.y - here.y) as f32).normalized();
+        // Shift held from before the press to after the release.
+        h.event(eframe::egui::Event::ModifiersChanged(if shift {
+            Modifiers::SHIFT
+        } else {
+            Modifiers::NONE
+        }));
+        h.hover_at(start);
+        h.run_steps(1);
+        h.drag_at(start);
+        h.run_steps(1);
+        for i in 1..=10 {
+            h.hover_at(start + dir * (4.0 * i as f32));
+            h.run_steps(1);
+        }
+        h.drop_at(start + dir * 40.0);
+        h.run_steps(3);
+        h.event(eframe::egui::Event::ModifiersChanged(Modifiers::NONE));
+        h.state().eval.legs[0].dsm.unwrap().fraction
+    };
+    let coarse = drag(&mut h, false) - f0;
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run_steps(3);
+    assert!((h.state().eval.legs[0].dsm.unwrap().fraction - f0).abs() < 1e-12);
+    let fine = drag(&mut h, true) - f0;
+    assert!(coarse.abs() > 0.01, "the plain drag moved {coarse}");
+    assert!(
+        (fine / coarse - 0.1).abs() < 0.04,
+        "fine {fine} vs coarse {coarse}"
+    );
+}

@@ -313,11 +313,14 @@ impl Jobs {
                 None => keep.push(r),
                 Some(_) if !current => self.dropped += 1,
                 Some(Ok(())) => {}
-                Some(Err(m)) => {
-                    if !r.progress().is_cancelled() {
-                        out.push(Finished::Message(m, true));
-                    }
+                // A job stopped by the user says so (its error is only the stop).
+                Some(Err(_)) if r.progress().is_cancelled() => {
+                    out.push(Finished::Message(
+                        format!("{} cancelled", r.kind.label()),
+                        false,
+                    ));
                 }
+                Some(Err(m)) => out.push(Finished::Message(m, true)),
             }
         }
         self.running = keep;
