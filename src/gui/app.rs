@@ -79,6 +79,20 @@ fn ledger_grip(ui: &mut egui::Ui) -> Option<f32> {
     resp.dragged().then(|| resp.drag_delta().y)
 }
 
+/// Mean, 95th percentile and largest of frame times, in words.
+fn spread(v: &mut [f32]) -> String {
+    if v.is_empty() {
+        return "n/a".into();
+    }
+    v.sort_by(f32::total_cmp);
+    let mean = v.iter().sum::<f32>() / v.len() as f32;
+    let p95 = v[(v.len() * 95 / 100).min(v.len() - 1)];
+    format!(
+        "mean {mean:.2} ms, p95 {p95:.2} ms, max {:.2} ms",
+        v[v.len() - 1]
+    )
+}
+
 /// Half the width of the band that grabs a panel's edge, points.
 const PANEL_GRAB: f32 = 6.0;
 
@@ -109,7 +123,8 @@ pub struct TourwrightApp {
     pub native_dialogs: bool,
     /// Smoothed time spent building a frame, ms.
     pub frame_ms: f32,
-    frame_log: Option<(Instant, Vec<f32>)>,
+    /// With TOURWRIGHT_FRAME_STATS set: since when, UI build times and whole-frame times (ms).
+    frame_log: Option<(Instant, Vec<f32>, Vec<f32>)>,
     close_confirmed: bool,
     screenshot_to: Option<PathBuf>,
     /// Picture-export result reported by the screenshot callback.
@@ -138,7 +153,7 @@ impl TourwrightApp {
             native_dialogs: true,
             frame_ms: 0.0,
             frame_log: std::env::var_os("TOURWRIGHT_FRAME_STATS")
-                .map(|_| (Instant::now(), Vec::new())),
+                .map(|_| (Instant::now(), Vec::new(), Vec::new())),
             close_confirmed: false,
             screenshot_to: None,
             shot_result: Arc::new(Mutex::new(None)),
@@ -621,18 +636,19 @@ impl TourwrightApp {
         } else {
             0.9 * self.frame_ms + 0.1 * ms
         };
-        if let Some((start, v)) = &mut self.frame_log {
+        if let Some((start, v, whole)) = &mut self.frame_log {
             v.push(ms);
             if start.elapsed().as_secs_f32() > 2.0 {
                 let dt = ctx.input(|i| i.unstable_dt) * 1000.0;
-                let mean = v.iter().sum::<f32>() / v.len() as f32;
-                let max = v.iter().cloned().fold(0.0, f32::max);
                 eprintln!(
-                    "frame stats: {} frames, ui build mean {mean:.2} ms max {max:.2} ms, last frame interval {dt:.1} ms",
-                    v.len()
+                    "frame stats: {} frames; ui build {}; whole frame incl. paint and swap {}; last frame interval {dt:.1} ms",
+                    v.len(),
+                    spread(v),
+                    spread(whole)
                 );
                 *start = Instant::now();
                 v.clear();
+                whole.clear();
             }
         }
     }
@@ -652,7 +668,12 @@ impl TourwrightApp {
 }
 
 impl eframe::App for TourwrightApp {
-    fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
+    fn ui(&mut self, ui: &mut egui::Ui, frame: &mut eframe::Frame) {
+        // eframe's figure for the previous frame: building, tessellation, the GL calls and the
+        // buffer swap (where a software rasteriser does its work).
+        if let (Some((_, _, whole)), Some(s)) = (&mut self.frame_log, frame.info().cpu_usage) {
+            whole.push(s * 1000.0);
+        }
         TourwrightApp::ui(self, ui);
     }
 

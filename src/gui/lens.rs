@@ -233,12 +233,18 @@ impl LensView {
                 FontId::proportional(12.0),
                 ink,
             );
-            ui.vertical(|ui| {
-                ui.set_width(side_w);
-                aim_dial(ui, vc, k, side_w, &mut out);
-                lens_controls(ui, vc, k, &mut out);
-                lens_figures(ui, vc, k);
-            });
+            // The side column scrolls when the window is short.
+            egui::ScrollArea::vertical()
+                .id_salt("lens-side")
+                .show(ui, |ui| {
+                    // Top-down inside (the scroll area takes the row's left-to-right layout).
+                    ui.vertical(|ui| {
+                        ui.set_width(side_w);
+                        aim_dial(ui, vc, k, side_w, &mut out);
+                        lens_controls(ui, vc, k, &mut out);
+                        lens_figures(ui, vc, k);
+                    });
+                });
         });
         out
     }
