@@ -634,7 +634,7 @@ impl Ctx<'_> {
         };
         let mut notes = b.notes.clone();
         let mut line = format!(
-            "Launch period day {offset:+} of {} ({} days apart): launch {}{}.",
+            "Launch period day {offset:+} of {} (steps of {} days): launch {}{}.",
             self.opts.days,
             self.opts.step_days,
             launch.to_date_utc(),
@@ -959,9 +959,6 @@ impl PeriodResult {
             .iter()
             .map(|d| {
                 let mut note = Vec::new();
-                if d.kept_start {
-                    note.push("start kept");
-                }
                 if d.interrupted {
                     note.push("interrupted");
                 }
@@ -1026,12 +1023,16 @@ impl PeriodResult {
     pub fn summary_lines(&self) -> Vec<String> {
         let s = &self.summary;
         let o = &self.options;
+        let apart = if o.step_days == 1.0 {
+            "1 day apart".to_string()
+        } else {
+            format!("{} days apart", o.step_days)
+        };
         let mut out = vec![format!(
-            "Launch period of {}: {} of {} days, {} day(s) apart, centred on {}{}",
+            "Launch period of {}: {} of {} launch days, {apart}, centred on {}{}",
             self.name,
             s.days_run,
             o.days,
-            o.step_days,
             self.centre.to_date_utc(),
             match self.arrival_held {
                 Some(a) => format!(", arrival held at {}", a.to_iso_utc()),
@@ -1043,7 +1044,11 @@ impl PeriodResult {
             out.push(format!("largest C3: {:.3} km²/s² ({})", e.value, at(e)));
         }
         if let Some(e) = &s.largest_dv {
-            out.push(format!("largest Δv: {:.3} km/s ({})", e.value, at(e)));
+            out.push(format!(
+                "largest spacecraft Δv: {:.3} km/s ({})",
+                e.value,
+                at(e)
+            ));
         }
         if let Some((a, b)) = s.dla_range_deg {
             out.push(format!("DLA range: {a:.1}° to {b:.1}°"));
