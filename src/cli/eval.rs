@@ -40,12 +40,16 @@ pub fn run(a: Args) -> CliResult {
     let tour = prepare(&a.file, &d)?;
     let mut e = Evaluation::default();
     evaluate(&tour, &EvalOptions::default(), &mut e);
-    let period = match d.launch_period {
-        Some(_) => {
-            let o = super::period::options(&d, None, None, false, None, 1)?;
-            Some(super::period::compute(&d, &o, &a.file)?)
-        }
-        None => None,
+    // A period that cannot run (a day outside the ephemeris range) still leaves the evaluation
+    // printed; its reason ends the command.
+    let (period, period_error) = match d.launch_period {
+        Some(_) => match super::period::options(&d, None, None, false, None, 1)
+            .and_then(|o| super::period::compute(&d, &o, &a.file))
+        {
+            Ok(p) => (Some(p), None),
+            Err(e) => (None, Some(e)),
+        },
+        None => (None, None),
     };
     if a.json {
         match &period {
@@ -74,6 +78,9 @@ pub fn run(a: Args) -> CliResult {
             }
             out(&s);
         }
+    }
+    if let Some(e) = period_error {
+        return Err(e);
     }
     if period.is_some() && interrupted() {
         return Err(CliError::status(EXIT_INTERRUPTED));

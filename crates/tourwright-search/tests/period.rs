@@ -497,3 +497,26 @@ fn the_design_field_loads_with_defaults_validates_and_round_trips() {
     assert!(Edit::SetLaunchPeriod(Some(bad)).apply(&mut e).is_err());
     assert!(e.launch_period.is_none());
 }
+
+#[test]
+fn a_day_outside_the_ephemeris_range_is_named() {
+    // Mean elements end with 2050: a period around 2050-12-28 runs past it.
+    let mut d = MissionDesign::new_blank();
+    d.stops[0].epoch = Epoch::parse("2050-06-01").unwrap();
+    d.stops[1].epoch = Epoch::parse("2050-12-20").unwrap();
+    let o = PeriodOptions {
+        days: 9,
+        step_days: 2.0,
+        fixed_arrival: true,
+        ..PeriodOptions::for_design(&d)
+    };
+    assert!(period::run(&d, &o, &Progress::new()).is_ok());
+    d.stops[0].epoch = Epoch::parse("2050-12-28").unwrap();
+    d.stops[1].epoch = Epoch::parse("2050-12-31").unwrap();
+    let e = period::run(&d, &o, &Progress::new()).unwrap_err();
+    assert!(
+        matches!(e, PeriodError::Day { offset, .. } if offset > 0),
+        "{e}"
+    );
+    assert!(e.to_string().contains("launch period day +"), "{e}");
+}
