@@ -794,6 +794,17 @@ fn json_of_every_command_parses_back() {
             ],
             "ranked",
         ),
+        (
+            vec![
+                "period".into(),
+                lantern.to_string_lossy().into(),
+                "--days".into(),
+                "1".into(),
+                "--evals-per-day".into(),
+                "2000".into(),
+            ],
+            "summary",
+        ),
     ];
     for (args, key) in cases {
         let out = bin().args(&args).arg("--json").output().unwrap();
@@ -1040,4 +1051,302 @@ fn the_continuous_trajectory_agrees_with_an_independent_integration() {
         String::from_utf8_lossy(&v.stderr)
     );
     assert!(said.contains("OK"), "{said}");
+}
+
+fn insight_period() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("crates/tourwright-search/tests/fixtures/insight-2018-launch-period.tour.ron")
+}
+
+#[test]
+fn period_prints_json_and_csv_and_writes_a_days_design_that_eval_agrees_with() {
+    let dir = tempfile::tempdir().unwrap();
+    let lantern = copy_of("lantern-jupiter-evej.tour.ron", dir.path());
+    let csv = dir.path().join("period.csv");
+    let day = dir.path().join("day.tour.ron");
+    let days = dir.path().join("days");
+    let text = run_ok(
+        bin()
+            .arg("period")
+            .arg(&lantern)
+            .args([
+                "--days",
+                "3",
+                "--step",
+                "2",
+                "--evals-per-day",
+                "20000",
+                "--json",
+            ])
+            .arg("--csv")
+            .arg(&csv)
+            .args(["--day", "-1", "--out"])
+            .arg(&day)
+            .arg("--out-dir")
+            .arg(&days),
+    );
+    let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+    for key in [
+        "name",
+        "days_requested",
+        "step_days",
+        "fixed_arrival",
+        "evals_per_day",
+        "seed",
+        "centre_utc",
+        "arrival_held_utc",
+        "cancelled",
+        "evaluations",
+        "every_day_meets_every_limit",
+        "summary",
+        "days",
+        "lines",
+    ] {
+        assert!(v.get(key).is_some(), "{key} missing: {text}");
+    }
+    assert_eq!(v["days_requested"], 3);
+    assert_eq!(v["step_days"], 2.0);
+    let s = &v["summary"];
+    for key in [
+        "largest_c3_km2_s2",
+        "largest_dv_km_s",
+        "dla_min_deg",
+        "dla_max_deg",
+        "days_breaking_limits",
+        "days_with_family_jumps",
+        "propellant_margin_kg",
+        "dv_margin_km_s",
+        "lv_margin_at_largest_c3_kg",
+    ] {
+        assert!(s.get(key).is_some(), "summary.{key} missing");
+    }
+    let rows = v["days"].as_array().unwrap();
+    assert_eq!(rows.len(), 3);
+    assert_eq!(rows[0]["day"], -1);
+    for key in [
+        "launch_utc",
+        "c3_km2_s2",
+        "vinf_km_s",
+        "dla_deg",
+        "rla_deg",
+        "encounters",
+        "total_dv_km_s",
+        "arrival_vinf_km_s",
+        "arrival_utc",
+        "delivered_mass_kg",
+        "meets_every_limit",
+        "broken_limits",
+        "family_jumps",
+    ] {
+        assert!(rows[0].get(key).is_some(), "days[].{key} missing");
+    }
+    let top = s["largest_c3_km2_s2"]["value"].as_f64().unwrap();
+    assert!(rows.iter().all(|r| r["c3_km2_s2"].as_f64().unwrap() <= top));
+    // The CSV: a header and a row per day.
+    let c = std::fs::read_to_string(&csv).unwrap();
+    assert!(
+        c.starts_with("day,launch_utc,c3_km2_s2,vinf_km_s,dla_deg,rla_deg"),
+        "{c}"
+    );
+    assert_eq!(c.lines().count(), 4);
+    // Day -1's design, evaluated by `eval`, gives the day's figures.
+    let e: serde_json::Value =
+        serde_json::from_str(&run_ok(bin().args(["eval", "--json"]).arg(&day))).unwrap();
+    assert_eq!(e["launch"]["c3_km2_s2"], rows[0]["c3_km2_s2"]);
+    assert_eq!(e["ledger"]["total_dv_km_s"], rows[0]["total_dv_km_s"]);
+    assert_eq!(
+        e["stops"][0]["epoch_utc"].as_str().unwrap()[..10],
+        rows[0]["launch_utc"].as_str().unwrap()[..10]
+    );
+    // Every day's design in the folder.
+    for n in ["day-1.tour.ron", "day0.tour.ron", "day+1.tour.ron"] {
+        tourwright::mission::files::load(&days.join(n)).unwrap();
+    }
+    // The text names the worst days with their units.
+    let text = run_ok(bin().arg("period").arg(&lantern).args([
+        "--days",
+        "3",
+        "--evals-per-day",
+        "20000",
+        "-q",
+    ]));
+    for w in [
+        "largest C3",
+        "km²/s²",
+        "DLA range",
+        "launch-vehicle margin",
+        "Preliminary design",
+    ] {
+        assert!(text.contains(w), "{w}: {text}");
+    }
+}
+
+#[test]
+fn period_refuses_bad_numbers_and_never_writes_over_its_input() {
+    let dir = tempfile::tempdir().unwrap();
+    let f = copy_of("lantern-jupiter-evej.tour.ron", dir.path());
+    let other = copy_of("tern-saturn-ejs.tour.ron", dir.path());
+    let before = std::fs::read(&f).unwrap();
+    let fail = |args: &[&std::ffi::OsStr]| {
+        let out = bin().arg("period").arg(&f).args(args).output().unwrap();
+        (out.status.code(), String::from_utf8(out.stderr).unwrap())
+    };
+    let (code, e) = fail(&["--days".as_ref(), "0".as_ref()]);
+    assert_eq!(code, Some(1));
+    assert!(e.contains("--days") && e.contains("1 to 366"), "{e}");
+    let (code, e) = fail(&["--step".as_ref(), "0".as_ref()]);
+    assert_eq!(code, Some(1));
+    assert!(
+        e.contains("--step") && e.contains("at least an hour"),
+        "{e}"
+    );
+    let (code, e) = fail(&[
+        "--days".as_ref(),
+        "300".as_ref(),
+        "--step".as_ref(),
+        "3".as_ref(),
+    ]);
+    assert_eq!(code, Some(1));
+    assert!(e.contains("--step") && e.contains("366"), "{e}");
+    let (code, e) = fail(&[
+        "--days".as_ref(),
+        "3".as_ref(),
+        "--day".as_ref(),
+        "5".as_ref(),
+        "--out".as_ref(),
+        dir.path().join("x.tour.ron").as_os_str(),
+    ]);
+    assert_eq!(code, Some(1));
+    assert!(e.contains("not a day of the period"), "{e}");
+    let (code, _) = fail(&["--day".as_ref(), "1".as_ref()]);
+    assert_eq!(code, Some(2), "clap: --day needs --out");
+    let (code, e) = fail(&["--csv".as_ref(), f.as_os_str()]);
+    assert_eq!(code, Some(1));
+    assert!(e.contains("never replaces"), "{e}");
+    let (code, e) = fail(&["--csv".as_ref(), other.as_os_str()]);
+    assert_eq!(code, Some(1));
+    assert!(e.contains("holds a design"), "{e}");
+    let (code, e) = fail(&[
+        "--day".as_ref(),
+        "0".as_ref(),
+        "--out".as_ref(),
+        f.as_os_str(),
+    ]);
+    assert_eq!(code, Some(1));
+    assert!(e.contains("--out"), "{e}");
+    // `export --period` refuses its input and a design file too.
+    let out = bin()
+        .arg("export")
+        .arg(&f)
+        .arg("--period")
+        .arg(&f)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let out = bin()
+        .arg("export")
+        .arg(&f)
+        .arg("--period")
+        .arg(&other)
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    assert_eq!(std::fs::read(&f).unwrap(), before);
+}
+
+#[test]
+fn eval_and_export_report_the_launch_period_the_design_asks_for() {
+    let f = insight_period();
+    let text = run_ok(bin().arg("eval").arg(&f).arg("-q"));
+    assert!(text.contains("Event") || text.contains("Launch:"), "{text}");
+    assert!(text.contains("Launch period of InSight"), "{text}");
+    assert!(text.contains("largest C3"), "{text}");
+    assert!(text.contains("arrival held at 2018-11-26"), "{text}");
+    let v: serde_json::Value =
+        serde_json::from_str(&run_ok(bin().args(["eval", "--json", "-q"]).arg(&f))).unwrap();
+    // The evaluation's own fields, and the period beside them.
+    assert_eq!(v["stops"].as_array().unwrap().len(), 2);
+    assert_eq!(v["launch_period"]["days"].as_array().unwrap().len(), 35);
+    assert_eq!(v["launch_period"]["fixed_arrival"], true);
+    // A design without the field: no period.
+    let v: serde_json::Value = serde_json::from_str(&run_ok(
+        bin()
+            .args(["eval", "--json"])
+            .arg(sample("tern-saturn-ejs.tour.ron")),
+    ))
+    .unwrap();
+    assert!(v.get("launch_period").is_none());
+    // The export.
+    let dir = tempfile::tempdir().unwrap();
+    let csv = dir.path().join("p.csv");
+    run_ok(
+        bin()
+            .arg("export")
+            .arg(&f)
+            .arg("--period")
+            .arg(&csv)
+            .arg("-q"),
+    );
+    let c = std::fs::read_to_string(&csv).unwrap();
+    assert!(c.starts_with("day,launch_utc,c3_km2_s2"));
+    assert_eq!(c.lines().count(), 36);
+    assert!(c.contains("2018-06-08"));
+}
+
+#[test]
+fn a_period_with_a_day_breaking_a_limit_exits_with_status_3_and_names_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(insight_period()).unwrap();
+    let capped = text.replacen(
+        "    arrival: FlybyOnly,",
+        "    arrival: FlybyOnly,\n    launch: (max_c3_km2_s2: Some(12.0)),",
+        1,
+    );
+    assert_ne!(capped, text);
+    let f = dir.path().join("capped.tour.ron");
+    std::fs::write(&f, capped).unwrap();
+    let out = bin().arg("period").arg(&f).arg("-q").output().unwrap();
+    assert_eq!(out.status.code(), Some(3));
+    let s = String::from_utf8(out.stdout).unwrap();
+    // From 3 June (day +12) the C3 is over 12 km²/s² (11.93 on 2 June, 12.32 on 3 June: the
+    // engine's own figures on mean elements, not an outside value).
+    assert!(
+        s.contains("days breaking a limit: +12, +13, +14, +15, +16, +17"),
+        "{s}"
+    );
+    assert!(s.contains("breaks: launch C3"), "{s}");
+    let out = bin()
+        .arg("period")
+        .arg(&f)
+        .args(["--json", "-q"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(3));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["every_day_meets_every_limit"], false);
+    let last = &v["days"][34];
+    assert_eq!(last["meets_every_limit"], false);
+    assert!(last["broken_limits"][0].as_str().unwrap().contains("C3"));
+}
+
+#[test]
+fn ctrl_c_stops_a_launch_period_and_keeps_the_days_finished() {
+    let child = bin()
+        .arg("period")
+        .arg(sample("lantern-jupiter-evej.tour.ron"))
+        .args(["--evals-per-day", "500000000", "--days", "5"])
+        .stdout(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(1500));
+    let st = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(st.success());
+    let out = child.wait_with_output().unwrap();
+    assert_eq!(out.status.code(), Some(130));
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(text.contains("interrupted"), "{text}");
+    assert!(text.contains("cancelled: 0 of 5 days finished"), "{text}");
 }

@@ -1,5 +1,6 @@
-//! `tourwright export FILE --csv/--ledger/--samples/--oem`: tables and the trajectory as files
-//! (`-` for standard output). An export never replaces its input or any file holding a design.
+//! `tourwright export FILE --csv/--ledger/--samples/--oem/--period`: tables, the trajectory and
+//! the launch period as files (`-` for standard output). An export never replaces its input or
+//! any file holding a design.
 
 use std::path::PathBuf;
 
@@ -8,13 +9,14 @@ use tourwright_mission::evaluate::{EvalOptions, Evaluation, evaluate};
 use tourwright_mission::export;
 
 use super::{
-    CliResult, EphemerisArg, Writes, check_output, claim_stdout, load_with, prepare, write,
+    CliError, CliResult, EXIT_INTERRUPTED, EphemerisArg, Writes, check_output, claim_stdout,
+    load_with, prepare, write,
 };
 
 /// The arguments of `export`.
 #[derive(clap::Args, Debug)]
 #[command(group(clap::ArgGroup::new("what").required(true).multiple(true)
-    .args(["csv", "ledger", "samples", "oem"])))]
+    .args(["csv", "ledger", "samples", "oem", "period"])))]
 pub struct Args {
     /// Design file (- for standard input).
     pub file: PathBuf,
@@ -32,6 +34,10 @@ pub struct Args {
     /// Trajectory as a CCSDS OEM (KVN).
     #[arg(long)]
     pub oem: Option<PathBuf>,
+    /// The launch period's table as CSV: the design's `launch_period` (21 days, one day apart,
+    /// when it asks for none), one row per day.
+    #[arg(long)]
+    pub period: Option<PathBuf>,
 }
 
 /// Run `export`.
@@ -41,6 +47,7 @@ pub fn run(a: Args) -> CliResult {
         (a.ledger.as_deref(), "--ledger"),
         (a.samples.as_deref(), "--samples"),
         (a.oem.as_deref(), "--oem"),
+        (a.period.as_deref(), "--period"),
     ];
     claim_stdout(&outputs.map(|o| o.0))?;
     for (p, flag) in outputs {
@@ -66,6 +73,17 @@ pub fn run(a: Args) -> CliResult {
     }
     if let Some(p) = &a.oem {
         write(p, &export::oem(&tour, &e, Epoch::now()))?;
+    }
+    if let Some(p) = &a.period {
+        let o = super::period::options(&d, None, None, false, None, 1)?;
+        let r = super::period::compute(&d, &o, &a.file)?;
+        if super::progress::interrupted() || r.cancelled {
+            return Err(CliError {
+                message: "interrupted: the launch period was not written".into(),
+                status: EXIT_INTERRUPTED,
+            });
+        }
+        write(p, &r.to_csv())?;
     }
     Ok(())
 }

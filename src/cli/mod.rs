@@ -16,6 +16,7 @@ mod export;
 mod fidelity;
 mod manual;
 mod optimize;
+mod period;
 mod progress;
 mod retarget;
 mod state;
@@ -75,6 +76,9 @@ pub enum Command {
     Optimize(optimize::Args),
     /// Explore planet sequences and rank them (or merge the shards of a survey).
     Explore(explore::Args),
+    /// Launch period: the tour re-optimised for each launch day around the design's; the worst
+    /// day's C3, Δv and declination, and the margins that cover every day.
+    Period(period::Args),
     /// Print a shell completion script (bash, zsh, fish, elvish, powershell).
     Completions(manual::CompletionArgs),
     /// Write the manual pages (roff), one per command.
@@ -195,6 +199,7 @@ pub fn run(cmd: Command, quiet: bool) -> CliResult {
         Command::Dsm(a) => dsm::run(a),
         Command::Optimize(a) => optimize::run(a),
         Command::Explore(a) => explore::run(a),
+        Command::Period(a) => period::run(a),
         Command::Completions(a) => manual::completions(a),
         Command::Manual(a) => manual::manual(a),
     }

@@ -53,6 +53,114 @@ pub struct MissionDesign {
     /// Which ephemeris model gives the planets' states and constants.
     #[serde(default, skip_serializing_if = "EphemerisChoice::is_default")]
     pub ephemeris: EphemerisChoice,
+    /// A launch period to judge the design on (`eval` then reports its summary); absent: the
+    /// design is judged on its one launch date.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub launch_period: Option<LaunchPeriodRequest>,
+}
+
+/// A launch period: daily launch opportunities centred on the design's launch date, each with
+/// its own tour re-optimised with that launch day fixed. Written in a design file as
+/// `launch_period: Some((days: 21, step_days: 1.0, fixed_arrival: false))`; every field may be
+/// left out.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LaunchPeriodRequest {
+    /// Launch opportunities, centred on the design's launch (offsets −(N−1)/2 … N/2 steps,
+    /// rounded down on the early side).
+    #[serde(default = "default_period_days")]
+    pub days: u32,
+    /// Days between opportunities.
+    #[serde(default = "default_period_step")]
+    pub step_days: f64,
+    /// Hold the arrival at the design's arrival date on every day (a landing or an arrival
+    /// geometry fixed for the whole period); otherwise every encounter date is free within its
+    /// bounds.
+    #[serde(default)]
+    pub fixed_arrival: bool,
+}
+
+/// Default number of launch opportunities of a launch period (common practice: a proposal
+/// shows a launch period of 21 days or more).
+pub const DEFAULT_PERIOD_DAYS: u32 = 21;
+/// Most opportunities of one launch period (ours: a year of daily launches; anything longer is
+/// a survey of launch windows, which `window` and `explore` do).
+pub const MAX_PERIOD_DAYS: u32 = 366;
+/// Smallest step between opportunities, days (ours: an hour; launch opportunities recur daily,
+/// and a finer step only repeats the same day).
+pub const MIN_PERIOD_STEP_DAYS: f64 = 1.0 / 24.0;
+/// Largest span of a launch period from its first to its last opportunity, days (ours: a year,
+/// as [`MAX_PERIOD_DAYS`]).
+pub const MAX_PERIOD_SPAN_DAYS: f64 = 366.0;
+
+fn default_period_days() -> u32 {
+    DEFAULT_PERIOD_DAYS
+}
+
+fn default_period_step() -> f64 {
+    1.0
+}
+
+impl Default for LaunchPeriodRequest {
+    fn default() -> Self {
+        LaunchPeriodRequest {
+            days: DEFAULT_PERIOD_DAYS,
+            step_days: 1.0,
+            fixed_arrival: false,
+        }
+    }
+}
+
+/// Which setting of a launch period is out of range.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum PeriodField {
+    /// The number of opportunities.
+    Days,
+    /// The step between them.
+    Step,
+}
+
+impl LaunchPeriodRequest {
+    /// Check the numbers: 1 to [`MAX_PERIOD_DAYS`] opportunities, a step of at least
+    /// [`MIN_PERIOD_STEP_DAYS`], a span of at most [`MAX_PERIOD_SPAN_DAYS`]. The file and the
+    /// command line share this rule and name the field their own way.
+    pub fn check(&self) -> Result<(), (PeriodField, String)> {
+        if !(1..=MAX_PERIOD_DAYS).contains(&self.days) {
+            return Err((
+                PeriodField::Days,
+                format!(
+                    "{} launch opportunities: need 1 to {MAX_PERIOD_DAYS}",
+                    self.days
+                ),
+            ));
+        }
+        if !(self.step_days.is_finite() && self.step_days >= MIN_PERIOD_STEP_DAYS) {
+            return Err((
+                PeriodField::Step,
+                format!(
+                    "a step of {} days: need at least an hour ({MIN_PERIOD_STEP_DAYS:.4} days)",
+                    self.step_days
+                ),
+            ));
+        }
+        let span = f64::from(self.days - 1) * self.step_days;
+        if span > MAX_PERIOD_SPAN_DAYS {
+            return Err((
+                PeriodField::Step,
+                format!(
+                    "{} opportunities {} days apart span {span} days: a launch period spans at \
+                     most {MAX_PERIOD_SPAN_DAYS} days",
+                    self.days, self.step_days
+                ),
+            ));
+        }
+        Ok(())
+    }
+
+    /// Offset of opportunity `i` (0-based) from the design's launch, in steps.
+    pub fn offset(&self, i: u32) -> i64 {
+        i64::from(i) - i64::from(self.days.saturating_sub(1) / 2)
+    }
 }
 
 /// A figure of merit of a tour: what a search minimises and what the direct-transfer comparison
@@ -578,6 +686,7 @@ impl MissionDesign {
             launch_vehicle: None,
             search: Default::default(),
             ephemeris: Default::default(),
+            launch_period: None,
         }
     }
 

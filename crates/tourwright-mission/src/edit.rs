@@ -6,8 +6,9 @@
 use tourwright_astro::time::Epoch;
 
 use crate::design::{
-    ArrivalGoal, Dsm, EphemerisChoice, LaunchLimits, LaunchVehicle, LaunchVinf, LegOptions,
-    MissionDesign, Objective, SearchBounds, Spacecraft, Stop, SwingbyMode, UserBody,
+    ArrivalGoal, Dsm, EphemerisChoice, LaunchLimits, LaunchPeriodRequest, LaunchVehicle,
+    LaunchVinf, LegOptions, MissionDesign, Objective, SearchBounds, Spacecraft, Stop, SwingbyMode,
+    UserBody,
 };
 use crate::evaluate::Evaluation;
 
@@ -212,6 +213,9 @@ pub enum Edit {
     SetSearch(SearchBounds),
     /// Choose the ephemeris model.
     SetEphemeris(EphemerisChoice),
+    /// Ask for a launch period (or none): how many opportunities, how far apart, and whether
+    /// the arrival is held.
+    SetLaunchPeriod(Option<LaunchPeriodRequest>),
     /// Replace the whole design.
     Replace(Box<MissionDesign>),
 }
@@ -271,6 +275,7 @@ impl Edit {
             Edit::SetObjective(_) => "objective",
             Edit::SetSearch(_) => "search bounds",
             Edit::SetEphemeris(_) => "ephemeris",
+            Edit::SetLaunchPeriod(_) => "launch period",
             Edit::Replace(_) => "replace design",
         }
     }
@@ -492,6 +497,7 @@ impl Edit {
                 crate::tour::Catalog::of(&probe).map_err(|i| EditError::Ephemeris(i.reason))?;
                 d.ephemeris = e
             }
+            Edit::SetLaunchPeriod(p) => d.launch_period = p,
             Edit::Replace(x) => *d = *x,
         }
         Ok(())

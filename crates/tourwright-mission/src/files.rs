@@ -6,7 +6,9 @@ use std::fs;
 use std::io::Write;
 use std::path::{Path, PathBuf};
 
-use crate::design::{ArrivalGoal, FORMAT_TAG, FORMAT_VERSION, MissionDesign, SwingbyMode};
+use crate::design::{
+    ArrivalGoal, FORMAT_TAG, FORMAT_VERSION, MissionDesign, PeriodField, SwingbyMode,
+};
 use crate::tour::Catalog;
 
 /// Why a design file could not be read or written.
@@ -449,6 +451,17 @@ pub fn validate(d: &MissionDesign) -> Result<(), Invalid> {
                 ));
             }
         }
+    }
+    if let Some(lp) = &d.launch_period {
+        lp.check().map_err(|(f, reason)| {
+            bad(
+                match f {
+                    PeriodField::Days => "launch_period.days",
+                    PeriodField::Step => "launch_period.step_days",
+                },
+                reason,
+            )
+        })?;
     }
     if let (Some(a), Some(b)) = (d.search.launch_earliest, d.search.launch_latest) {
         if b.tdb().0 < a.tdb().0 {

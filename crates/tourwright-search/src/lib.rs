@@ -7,6 +7,7 @@ pub mod direct;
 pub mod explore;
 pub mod job;
 pub mod optimize;
+pub mod period;
 pub mod polish;
 pub mod window;
 

@@ -12,8 +12,8 @@ pub use evolve::{
     DEFAULT_EVALS, HopSettings, OptimizeOptions, OptimizeResult, optimize, optimize_from,
 };
 pub use problem::{
-    Constraint, DsmStartVars, DsmVars, Problem, ProblemError, SEARCH_MISS_KM, ShapedVars,
+    Constraint, DsmStartVars, DsmVars, Held, Problem, ProblemError, SEARCH_MISS_KM, ShapedVars,
     Workspace, launch_angles, rev_choice,
 };
 pub use rng::Rng;
-pub use writeback::{SearchOutcome, search_design};
+pub use writeback::{SearchOutcome, search_design, search_design_held};

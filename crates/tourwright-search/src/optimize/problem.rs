@@ -79,6 +79,19 @@ pub struct Problem {
     pub returns: Vec<ShapedVars>,
     /// Which of the design's limits the problem keeps.
     pub limits: LimitSet,
+    /// The arrival epoch held fixed (a launch period with its arrival held): the last leg's time
+    /// of flight then follows from the other variables, and its own variable is pinned.
+    pub arrival_held: Option<Tdb>,
+}
+
+/// Epochs a search holds fixed instead of searching them: a launch period's day holds the
+/// launch, and may hold the arrival.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct Held {
+    /// The launch epoch.
+    pub launch: Option<Epoch>,
+    /// The arrival epoch (the last stop's).
+    pub arrival: Option<Epoch>,
 }
 
 /// The variables of a leg with a deep-space manoeuvre.
@@ -331,7 +344,32 @@ impl Problem {
             ballistic,
             returns,
             limits,
+            arrival_held: None,
         })
+    }
+
+    /// Hold the epochs of `held`: the launch by pinning its variable's bounds; the arrival by
+    /// deriving the last leg's time of flight from the other variables (its own variable is
+    /// pinned and ignored). Other encounter dates stay free within their bounds.
+    pub fn hold(&mut self, held: Held) {
+        if let Some(t) = held.launch {
+            let m = t.tdb().mjd2000();
+            self.lo[0] = m;
+            self.hi[0] = m;
+        }
+        if let Some(t) = held.arrival {
+            let legs = self.tour.legs.len();
+            let last = self.tour.stops[legs].t.days() - self.tour.stops[legs - 1].t.days();
+            let v = clamp_safe(last, self.lo[legs], self.hi[legs]);
+            self.lo[legs] = v;
+            self.hi[legs] = v;
+            self.arrival_held = Some(t.tdb());
+        }
+    }
+
+    /// Number of variables the search may move (bounds not pinned, integer choices included).
+    pub fn free_dim(&self) -> usize {
+        self.lo.iter().zip(&self.hi).filter(|(a, b)| b > a).count()
     }
 
     /// The decision vector of the design the problem was built from: where every search starts.
@@ -363,7 +401,10 @@ impl Problem {
 
     /// Total time of flight of `x`, days.
     pub fn total_tof(&self, x: &[f64]) -> f64 {
-        x[1..=self.tour.legs.len()].iter().sum()
+        match self.arrival_held {
+            Some(t) => t.mjd2000() - x[0],
+            None => x[1..=self.tour.legs.len()].iter().sum(),
+        }
     }
 
     /// Number of variables.
@@ -376,6 +417,11 @@ impl Problem {
     pub fn apply(&self, x: &[f64], tour: &mut PreparedTour) {
         let legs = tour.legs.len();
         tour.set_schedule(Tdb::from_mjd2000(x[0]), &x[1..=legs]);
+        if let Some(t) = self.arrival_held {
+            // The last leg ends at the held arrival whatever the other legs take; a schedule
+            // that reaches it too late is out of order, which the evaluation reports.
+            tour.stops[legs].t = t;
+        }
         for &(k, i) in &self.rev_vars {
             let (revs, branch) = rev_choice(x[i]);
             tour.legs[k].revs = revs;

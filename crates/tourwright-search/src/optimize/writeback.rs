@@ -13,7 +13,7 @@ use tourwright_mission::{
 };
 
 use super::evolve::{OptimizeOptions, optimize_from};
-use super::problem::{Problem, ProblemError, Workspace};
+use super::problem::{Held, Problem, ProblemError, Workspace};
 use crate::job::Progress;
 
 /// What a search of a design gives back.
@@ -111,9 +111,30 @@ pub fn search_design(
     progress: &Progress,
     want_front: bool,
 ) -> Result<SearchOutcome, ProblemError> {
+    search_design_held(d, opts, limits, progress, want_front, Held::default())
+}
+
+/// [`search_design`] with some epochs held fixed (a launch period's day: its launch, and the
+/// arrival when the period holds it). The start should already carry the held epochs: it is
+/// judged as it is, and a result is returned only if it is better.
+pub fn search_design_held(
+    d: &MissionDesign,
+    opts: &OptimizeOptions,
+    limits: LimitSet,
+    progress: &Progress,
+    want_front: bool,
+    held: Held,
+) -> Result<SearchOutcome, ProblemError> {
     let start = assess(d, limits);
-    let p = Problem::with_limits(d, limits)?;
+    let mut p = Problem::with_limits(d, limits)?;
+    p.hold(held);
     let x0 = p.start();
+    // Nothing left to move (a direct transfer with both ends held): the start is the answer.
+    let one = OptimizeOptions {
+        max_evals: 1,
+        ..*opts
+    };
+    let opts = if p.free_dim() == 0 { &one } else { opts };
     let r = optimize_from(&p, opts, progress, want_front, Some(&x0));
     let candidate = {
         let mut c = d.clone();
