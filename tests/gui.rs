@@ -1455,3 +1455,60 @@ fn a_shift_drag_moves_the_manoeuvre_a_tenth_as_far() {
         "fine {fine} vs coarse {coarse}"
     );
 }
+
+/// The launch period from its tab: the job runs (progress, then the result for this revision),
+/// hovering a plot picks the nearest day, and a day's "open" makes its tour the design in one
+/// undo step.
+#[test]
+fn launch_period_runs_from_its_tab_and_opens_a_day_as_one_undo_step() {
+    let mut h = harness(0);
+    h.get_by_label("Launch period").click();
+    h.run_steps(3);
+    // A short period on a small budget (the engine's own tests check convergence).
+    {
+        let o = &mut h.state_mut().views.period.options;
+        assert_eq!((o.days, o.step_days), (21, 1.0), "the defaults");
+        o.days = 5;
+        o.step_days = 2.0;
+        o.evals_per_day = 3_000;
+    }
+    h.get_by_label("Compute launch period").click();
+    h.run_steps(2);
+    assert!(
+        h.state()
+            .jobs
+            .is_running(tourwright::gui::action::JobKind::Period)
+    );
+    wait_for_jobs(&mut h);
+    let (days, launches, revision) = {
+        let r = h.state().jobs.period.as_ref().expect("a result");
+        let launches: Vec<_> = r.value.days.iter().map(|d| d.launch).collect();
+        (r.value.days.len(), launches, r.revision)
+    };
+    assert_eq!(days, 5);
+    assert_eq!(revision, h.state().doc.revision());
+    // Two days apart, centred on the design's launch.
+    let l0 = h.state().design().stops[0].epoch;
+    assert!((launches[0].days() - (l0.days() - 4.0)).abs() < 1e-6);
+    assert!((launches[4].days() - (l0.days() + 4.0)).abs() < 1e-6);
+    assert!(
+        status(&h).contains("launch period: 5 days"),
+        "{}",
+        status(&h)
+    );
+    let before = h.state().design().clone();
+    // The table lies under the plots: scroll to its first row's button, as a user would.
+    h.get_all_by_label("open").next().unwrap().scroll_to_me();
+    h.run_steps(3);
+    h.get_all_by_label("open").next().unwrap().hover();
+    h.run_steps(2);
+    h.get_all_by_label("open").next().unwrap().click();
+    h.run_steps(3);
+    let opened = h.state().design().clone();
+    assert_ne!(opened, before);
+    assert!((opened.stops[0].epoch.days() - launches[0].days()).abs() < 1e-6);
+    assert_ledger_matches(&h, "after opening a launch day");
+    h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+    h.run_steps(3);
+    assert_eq!(*h.state().design(), before, "one undo step returns");
+}

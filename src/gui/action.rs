@@ -23,6 +23,8 @@ pub enum View {
     Direct,
     /// Porkchop view.
     Window,
+    /// The launch period: C3, Δv and DLA against the launch day.
+    Period,
     /// The Tisserand graph.
     Tisserand,
     /// The n-body fidelity check.
@@ -31,12 +33,13 @@ pub enum View {
 
 impl View {
     /// All views in tab order.
-    pub const ALL: [View; 7] = [
+    pub const ALL: [View; 8] = [
         View::Sun,
         View::Lens,
         View::Ladder,
         View::Direct,
         View::Window,
+        View::Period,
         View::Tisserand,
         View::Fidelity,
     ];
@@ -49,6 +52,7 @@ impl View {
             View::Ladder => "Energy ladder",
             View::Direct => "Direct vs assist",
             View::Window => "Window map",
+            View::Period => "Launch period",
             View::Tisserand => "Tisserand graph",
             View::Fidelity => "Fidelity",
         }
@@ -138,6 +142,8 @@ pub enum JobKind {
     Fidelity,
     /// Continuous n-body trajectory (multiple shooting).
     Continuous,
+    /// The launch period: each day's tour re-optimised.
+    Period,
 }
 
 impl JobKind {
@@ -150,6 +156,7 @@ impl JobKind {
             JobKind::Explore => "sequence explorer",
             JobKind::Fidelity => "n-body check",
             JobKind::Continuous => "continuous n-body trajectory",
+            JobKind::Period => "launch period",
         }
     }
 }
@@ -169,6 +176,8 @@ pub enum JobRequest {
     Fidelity,
     /// Solve for the continuous n-body trajectory.
     Continuous,
+    /// Re-optimise the tour on each day of a launch period.
+    Period(tourwright_search::period::PeriodOptions),
 }
 
 /// Everything the workbench can be asked to do.

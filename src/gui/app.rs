@@ -52,6 +52,8 @@ pub struct Views {
     pub fidelity: super::fidelity::FidelityView,
     /// Tisserand graph.
     pub tisserand: super::tisserand::TisserandView,
+    /// Launch period.
+    pub period: super::period::PeriodView,
 }
 
 /// The ledger's grip: a band along its top edge that resizes it. Returns the pointer's vertical
@@ -576,12 +578,8 @@ impl TourwrightApp {
                         }
                         View::Window => views.window.ui(ui, &vc),
                         View::Tisserand => views.tisserand.ui(ui, &vc),
-                        View::Fidelity => {
-                            egui::ScrollArea::vertical()
-                                .auto_shrink(false)
-                                .show(ui, |ui| views.fidelity.ui(ui, &vc))
-                                .inner
-                        }
+                        View::Fidelity => views.fidelity.ui(ui, &vc),
+                        View::Period => views.period.ui(ui, &vc),
                     });
                 });
             actions.extend(self.dialogs.ui(&ctx, &vc, self.frame_ms));

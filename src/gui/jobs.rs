@@ -12,6 +12,7 @@ use tourwright_mission::{MissionDesign, PreparedTour};
 use tourwright_search::direct::{self, DirectComparison};
 use tourwright_search::explore::{self, Exploration};
 use tourwright_search::optimize::{self, SearchOutcome};
+use tourwright_search::period::{self, PeriodResult};
 use tourwright_search::window::{self, WindowMap};
 use tourwright_search::{Job, JobStatus, Progress};
 
@@ -24,6 +25,7 @@ enum Handle {
     Explore(Job<Exploration>),
     Fidelity(Job<Result<Fidelity, String>>),
     Continuous(Job<Result<Continuous, String>>),
+    Period(Job<Result<PeriodResult, String>>),
 }
 
 impl Handle {
@@ -35,6 +37,7 @@ impl Handle {
             Handle::Explore(j) => &j.progress,
             Handle::Fidelity(j) => &j.progress,
             Handle::Continuous(j) => &j.progress,
+            Handle::Period(j) => &j.progress,
         }
     }
 }
@@ -81,6 +84,8 @@ pub struct Jobs {
     pub fidelity: Option<ForRevision<Fidelity>>,
     /// The latest continuous n-body trajectory.
     pub continuous: Option<ForRevision<Continuous>>,
+    /// The latest launch period.
+    pub period: Option<ForRevision<PeriodResult>>,
     /// A window map waiting to be shown.
     pub window: Option<WindowMap>,
     /// Results dropped because they belonged to another document.
@@ -123,6 +128,7 @@ impl Jobs {
             JobRequest::Explore(_) => JobKind::Explore,
             JobRequest::Fidelity => JobKind::Fidelity,
             JobRequest::Continuous => JobKind::Continuous,
+            JobRequest::Period(_) => JobKind::Period,
         };
         self.cancel(kind);
         let d = design.clone();
@@ -159,6 +165,9 @@ impl Jobs {
                     p.is_cancelled()
                 })
                 .map_err(|e| e.to_string())
+            })),
+            JobRequest::Period(o) => Handle::Period(Job::spawn(label, move |p| {
+                period::run(&d, &o, &p).map_err(|e| e.to_string())
             })),
             JobRequest::Continuous => Handle::Continuous(Job::spawn(label, move |p| {
                 let tour = PreparedTour::prepare(&d).map_err(|e| e.to_string())?;
@@ -202,6 +211,7 @@ impl Jobs {
         self.window = None;
         self.fidelity = None;
         self.continuous = None;
+        self.period = None;
     }
 
     /// Collect finished jobs. Results for another document generation are dropped.
@@ -283,6 +293,37 @@ impl Jobs {
                             ));
                             self.continuous = Some(ForRevision {
                                 value: c,
+                                revision: r.revision,
+                            });
+                        }
+                        Some(Ok(()))
+                    }
+                    JobStatus::Done(Err(m)) | JobStatus::Failed(m) => Some(Err(m)),
+                },
+                Handle::Period(j) => match j.poll() {
+                    JobStatus::Running => None,
+                    JobStatus::Done(Ok(res)) => {
+                        if current {
+                            let broken = res.summary.days_breaking_limits.len();
+                            let what = if res.cancelled {
+                                "launch period cancelled"
+                            } else {
+                                "launch period"
+                            };
+                            out.push(Finished::Message(
+                                format!(
+                                    "{what}: {} days, {}",
+                                    res.days.len(),
+                                    if broken == 0 {
+                                        "every day meets every limit".to_string()
+                                    } else {
+                                        format!("{broken} break a limit")
+                                    }
+                                ),
+                                broken > 0,
+                            ));
+                            self.period = Some(ForRevision {
+                                value: res,
                                 revision: r.revision,
                             });
                         }

@@ -22,6 +22,7 @@ pub mod ledger;
 pub mod lens;
 pub mod menus;
 pub mod panels;
+pub mod period;
 pub mod samples;
 pub mod search_panel;
 pub mod shared;
