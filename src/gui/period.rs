@@ -14,6 +14,7 @@ use super::context::ViewCtx;
 use super::style;
 
 /// The form (days, step, arrival held, budget) and the day under the pointer.
+#[derive(Default)]
 pub struct PeriodView {
     /// The form's options.
     pub options: PeriodOptions,
@@ -22,16 +23,6 @@ pub struct PeriodView {
     filled_for: Option<u64>,
     /// The day (offset) under the pointer last frame.
     pub hovered: Option<i64>,
-}
-
-impl Default for PeriodView {
-    fn default() -> Self {
-        PeriodView {
-            options: PeriodOptions::default(),
-            filled_for: None,
-            hovered: None,
-        }
-    }
 }
 
 impl PeriodView {
