@@ -171,6 +171,11 @@ impl SunView {
             bounds: resp.rect.shrink(2.0),
             placed: Vec::new(),
         };
+        // Labels keep off the Sun and every stop's symbol.
+        labels.block(frame.au(0.0, 0.0), 8.0);
+        for st in &vc.eval.stops {
+            labels.block(frame.km(&st.body_state.r), 8.0);
+        }
         self.draw_orbits(&painter, &frame, vc.dark);
         let hover = draw_legs(&painter, &frame, vc.eval, resp.hover_pos());
         self.draw_nbody(&painter, &frame, vc);
@@ -499,6 +504,12 @@ struct Labels {
 }
 
 impl Labels {
+    /// Keep labels off a symbol of radius `r` at `at`.
+    fn block(&mut self, at: Pos2, r: f32) {
+        self.placed
+            .push(egui::Rect::from_center_size(at, vec2(2.0 * r, 2.0 * r)));
+    }
+
     fn place(
         &mut self,
         painter: &egui::Painter,
