@@ -1358,14 +1358,28 @@ fn a_shaped_swingby_that_misses_marks_the_stops_after_it_not_reached() {
         } => (altitude_km, aim_deg),
         SwingbyMode::Targeted => panic!("Lantern's Venus swing-by is shaped"),
     };
-    // As a 4-point drag of the periapsis does (+560 km).
-    h.state_mut().apply(Action::Edit(Edit::SetSwingbyMode {
-        stop: 1,
-        mode: SwingbyMode::Shaped {
-            altitude_km: alt + 560.0,
-            aim_deg: aim,
-        },
-    }));
+    // Drag the lens' periapsis handle outwards by a few points, as a user would.
+    let _ = (alt, aim);
+    h.get_by_label("Swing-by lens").click();
+    h.run_steps(3);
+    let (handle, centre) = h.state().views.lens.handle.expect("the handle is drawn");
+    let out = (handle - centre).normalized();
+    h.hover_at(handle);
+    h.run_steps(1);
+    h.drag_at(handle);
+    h.run_steps(1);
+    for i in 1..=6 {
+        h.hover_at(handle + out * (2.0 * i as f32));
+        h.run_steps(1);
+    }
+    h.drop_at(handle + out * 12.0);
+    h.run_steps(3);
+    let moved = match h.state().design().stops[1].swingby.mode {
+        SwingbyMode::Shaped { altitude_km, .. } => altitude_km - alt,
+        SwingbyMode::Targeted => f64::NAN,
+    };
+    assert!(moved > 100.0, "the drag raised the periapsis by {moved} km");
+    h.get_by_label("Sun view").click();
     h.run_steps(3);
     let app = h.state();
     assert_eq!(app.eval.first_unreached(), Some(2));

@@ -23,6 +23,8 @@ pub struct LensView {
     frozen_km_per_pt: Option<f64>,
     /// Hyperbola points, reused frame to frame.
     buf: Vec<(f64, f64)>,
+    /// Where the periapsis handle and the planet's centre were drawn last frame (for tests).
+    pub handle: Option<(Pos2, Pos2)>,
 }
 
 impl LensView {
@@ -165,6 +167,7 @@ impl LensView {
             }
             // Periapsis handle.
             let pp = to_screen((rp, 0.0));
+            self.handle = Some((pp, pc));
             let handle = egui::Rect::from_center_size(pp, vec2(22.0, 22.0));
             let h_resp = ui.interact(handle, resp.id.with("periapsis"), Sense::drag());
             let hot = h_resp.hovered() || h_resp.dragged();
