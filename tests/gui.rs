@@ -1348,7 +1348,7 @@ fn the_ledger_is_resized_by_its_grip() {
 /// and the ladder, with no flight figures.
 #[test]
 fn a_shaped_swingby_that_misses_marks_the_stops_after_it_not_reached() {
-    use tourwright::gui::action::{Action, View};
+    use tourwright::gui::action::View;
     let mut h = harness(0);
     assert!(h.state().eval.first_unreached().is_none());
     let (alt, aim) = match h.state().design().stops[1].swingby.mode {
