@@ -1252,6 +1252,34 @@ fn every_tab_and_panel_fits_and_answers_clicks_at_laptop_sizes() {
         h.get_by_label(View::Tisserand.title()).click();
         h.run_steps(3);
         assert_inside(&h, "Saturn", size);
+        let shown = h.state().views.tisserand.bodies.len();
+        h.get_by_label("Saturn").click();
+        h.run_steps(2);
+        assert_ne!(
+            h.state().views.tisserand.bodies.len(),
+            shown,
+            "at {size:?}: Saturn"
+        );
+        // Launch period: its button lies inside.
+        h.get_by_label(View::Period.title()).click();
+        h.run_steps(2);
+        assert_inside(&h, "Compute launch period", size);
+        // Swing-by lens: "Back to targeted" answers (and Undo restores the shaped swing-by).
+        h.get_by_label(View::Lens.title()).click();
+        h.run_steps(3);
+        assert_inside(&h, "Back to targeted", size);
+        let before = h.state().design().clone();
+        h.get_by_label("Back to targeted").click();
+        h.run_steps(2);
+        assert_ne!(*h.state().design(), before, "at {size:?}: Back to targeted");
+        h.key_press_modifiers(Modifiers::COMMAND, Key::Z);
+        h.run_steps(2);
+        assert_eq!(*h.state().design(), before);
+        // Direct vs assist: its ranking choices lie inside.
+        h.get_by_label(View::Direct.title()).click();
+        h.run_steps(2);
+        assert_inside(&h, "Rank direct transfers by", size);
+        wait_for_jobs(&mut h);
         // Sun view: "fit" resets the zoom.
         h.get_by_label(View::Sun.title()).click();
         h.run_steps(2);
