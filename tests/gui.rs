@@ -1538,6 +1538,21 @@ fn launch_period_runs_from_its_tab_and_opens_a_day_as_one_undo_step() {
         "{}",
         status(&h)
     );
+    // File › Export › the launch period's table, through the typed-path prompt.
+    let dir = tempfile::tempdir().unwrap();
+    let target = dir.path().join("period.csv");
+    h.get_by_label("File").click();
+    h.run_steps(2);
+    h.get_by_label("Export").click();
+    h.run_steps(2);
+    h.get_by_label_contains("Launch period (CSV)").click();
+    h.run_steps(2);
+    h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 = target.to_string_lossy().to_string();
+    h.run_steps(1);
+    h.get_by_label("OK").click();
+    h.run_steps(3);
+    let csv = std::fs::read_to_string(&target).unwrap();
+    assert_eq!(csv.lines().count(), 1 + 5, "{csv}");
     let before = h.state().design().clone();
     // The table lies under the plots: scroll to its first row's button, as a user would.
     h.get_all_by_label("open").next().unwrap().scroll_to_me();

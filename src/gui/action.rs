@@ -91,6 +91,8 @@ pub enum PathPurpose {
     Oem,
     /// Export the converged continuous n-body trajectory as an OEM.
     ContinuousOem,
+    /// Export the launch period's table.
+    PeriodCsv,
     /// Save a picture of the current view.
     Picture,
     /// Choose a JPL SPK kernel as the design's ephemeris.
@@ -99,7 +101,7 @@ pub enum PathPurpose {
 
 impl PathPurpose {
     /// Every export, with its menu label.
-    pub const EXPORTS: [(&'static str, PathPurpose); 6] = [
+    pub const EXPORTS: [(&'static str, PathPurpose); 7] = [
         ("Event table (CSV)…", PathPurpose::EventsCsv),
         ("Ledger (CSV)…", PathPurpose::LedgerCsv),
         ("Trajectory samples (CSV)…", PathPurpose::SamplesCsv),
@@ -108,6 +110,7 @@ impl PathPurpose {
             "Continuous n-body trajectory (CCSDS OEM)…",
             PathPurpose::ContinuousOem,
         ),
+        ("Launch period (CSV)…", PathPurpose::PeriodCsv),
         ("Picture of the current view (PNG)…", PathPurpose::Picture),
     ];
 }

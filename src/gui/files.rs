@@ -145,6 +145,22 @@ pub fn export_to(app: &mut TourwrightApp, purpose: PathPurpose, p: &Path) {
                 return;
             }
         },
+        PathPurpose::PeriodCsv => match app
+            .jobs
+            .period
+            .as_ref()
+            .filter(|r| r.revision == app.doc.revision())
+        {
+            Some(r) => r.value.to_csv(),
+            None => {
+                app.dialogs.error = Some(
+                    "No launch period for this version of the design: compute it in the Launch \
+                     period view first."
+                        .into(),
+                );
+                return;
+            }
+        },
         PathPurpose::Open | PathPurpose::SaveAs | PathPurpose::Picture | PathPurpose::Kernel => {
             return;
         }
@@ -173,9 +189,10 @@ pub fn ask_path(app: &mut TourwrightApp, purpose: PathPurpose) {
     let base = rfd::FileDialog::new();
     let dlg = match purpose {
         PathPurpose::Open | PathPurpose::SaveAs => base.add_filter("Tourwright design", &["ron"]),
-        PathPurpose::EventsCsv | PathPurpose::LedgerCsv | PathPurpose::SamplesCsv => {
-            base.add_filter("CSV", &["csv"])
-        }
+        PathPurpose::EventsCsv
+        | PathPurpose::LedgerCsv
+        | PathPurpose::SamplesCsv
+        | PathPurpose::PeriodCsv => base.add_filter("CSV", &["csv"]),
         PathPurpose::Oem | PathPurpose::ContinuousOem => {
             base.add_filter("CCSDS OEM", &["oem", "txt"])
         }
@@ -257,6 +274,7 @@ fn default_path(app: &TourwrightApp, purpose: PathPurpose) -> String {
         PathPurpose::SamplesCsv => format!("{stem}-trajectory.csv"),
         PathPurpose::Oem => format!("{stem}.oem"),
         PathPurpose::ContinuousOem => format!("{stem}-nbody.oem"),
+        PathPurpose::PeriodCsv => format!("{stem}-launch-period.csv"),
         PathPurpose::Picture => format!(
             "{stem}-{}.png",
             app.settings.view.title().to_lowercase().replace(' ', "-")
