@@ -162,13 +162,16 @@ pub enum FamilyJump {
         /// This day's.
         to: (u32, Branch),
     },
-    /// An encounter date moved by more than the threshold.
+    /// An encounter date left its drift (the move the neighbour made) by more than the
+    /// threshold.
     EncounterDate {
         /// Stop index.
         stop: usize,
         /// How far it moved from the neighbour's, days.
         shift_days: f64,
-        /// The threshold, days.
+        /// The move its drift predicted (the neighbour's own move), days.
+        expected_days: f64,
+        /// The threshold on the difference, days.
         limit_days: f64,
     },
     /// The total spacecraft Δv changed by more than the threshold.
@@ -194,10 +197,12 @@ impl fmt::Display for FamilyJump {
             FamilyJump::EncounterDate {
                 stop,
                 shift_days,
+                expected_days,
                 limit_days,
             } => write!(
                 f,
-                "stop {} moved {shift_days:+.1} days (more than {limit_days:.1})",
+                "stop {} moved {shift_days:+.1} days where its drift gave {expected_days:+.1} \
+                 (off by more than {limit_days:.1})",
                 stop + 1
             ),
             FamilyJump::DeltaV {
@@ -750,6 +755,7 @@ pub fn family_jumps(
             jumps.push(FamilyJump::EncounterDate {
                 stop: k + 1,
                 shift_days: shift,
+                expected_days: expected,
                 limit_days: limit,
             });
         }
