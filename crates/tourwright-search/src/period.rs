@@ -387,8 +387,22 @@ pub struct PeriodResult {
     /// True when the run was cancelled: `days` holds the days finished until then (a day cut
     /// short is marked `interrupted`).
     pub cancelled: bool,
+    /// Days that could not run (a launch or an encounter outside the ephemeris' range, say),
+    /// with the reason: the first such day on each side and every day beyond it.
+    pub not_run: Vec<DayNotRun>,
     /// Evaluations spent by every day's search.
     pub evaluations: u64,
+}
+
+/// A launch day of the period that could not be searched.
+#[derive(Clone, Debug, PartialEq)]
+pub struct DayNotRun {
+    /// Offset from the design's launch, in steps.
+    pub offset: i64,
+    /// Its launch epoch.
+    pub launch: Epoch,
+    /// Why, in words.
+    pub reason: String,
 }
 
 /// Run a launch period of `design`. Progress counts finished days; cancelling `progress` stops
@@ -425,23 +439,25 @@ pub fn run(
     let stop = first.interrupted;
     let early: Vec<i64> = offsets.iter().rev().copied().filter(|&o| o < 0).collect();
     let late: Vec<i64> = offsets.iter().copied().filter(|&o| o > 0).collect();
-    let (before, after) = if stop {
-        (Ok(Vec::new()), Ok(Vec::new()))
+    let ((mut before, mut not_run), (after, not_after)) = if stop {
+        ((Vec::new(), Vec::new()), (Vec::new(), Vec::new()))
     } else {
         rayon::join(
             || ctx.march(&first.design, &early),
             || ctx.march(&first.design, &late),
         )
     };
-    let (mut before, after) = (before?, after?);
     before.reverse();
     days.extend(before);
     days.push(first);
     days.extend(after);
+    not_run.reverse();
+    not_run.extend(not_after);
     ctx.repair(&mut days)?;
     flag_jumps(&mut days, opts.step_days);
     let summary = summarise(design, &days);
-    let ran_all = days.len() == offsets.len() && days.iter().all(|d| !d.interrupted);
+    let ran_all =
+        days.len() + not_run.len() == offsets.len() && days.iter().all(|d| !d.interrupted);
     Ok(PeriodResult {
         options: *opts,
         name: design.name.clone(),
@@ -451,6 +467,7 @@ pub fn run(
         cancelled: !ran_all || progress.is_cancelled(),
         days,
         summary,
+        not_run,
     })
 }
 
@@ -465,10 +482,12 @@ struct Ctx<'a> {
 
 impl Ctx<'_> {
     /// The days of `offsets` in order, each started from the one before (the first from
-    /// `from`, the centre); stops at a cancelled day.
-    fn march(&self, from: &MissionDesign, offsets: &[i64]) -> Result<Vec<PeriodDay>, PeriodError> {
+    /// `from`, the centre); stops at a cancelled day. A day that cannot run ends the march on
+    /// its side: it and every day beyond it are returned as not run, with the reason (each
+    /// day starts from its neighbour, and the days beyond lie further out of range).
+    fn march(&self, from: &MissionDesign, offsets: &[i64]) -> (Vec<PeriodDay>, Vec<DayNotRun>) {
         let mut out: Vec<PeriodDay> = Vec::with_capacity(offsets.len());
-        for &o in offsets {
+        for (i, &o) in offsets.iter().enumerate() {
             if self.progress.is_cancelled() {
                 break;
             }
@@ -481,14 +500,38 @@ impl Ctx<'_> {
                 _ => Some(&out[n - 2].design),
             };
             let launch = self.opts.launch_of(self.centre, o);
-            let start = self
+            let day = self
                 .start(prev, before, launch)
                 .map_err(|reason| PeriodError::Day {
                     offset: o,
                     launch: launch.to_date_utc(),
                     reason,
-                })?;
-            let day = self.day(start, o)?;
+                })
+                .and_then(|start| self.day(start, o));
+            let day = match day {
+                Ok(d) => d,
+                Err(e) => {
+                    let reason = match e {
+                        PeriodError::Day { reason, .. } => reason,
+                        other => other.to_string(),
+                    };
+                    let rest = &offsets[i..];
+                    self.progress.add(rest.len() as u64);
+                    let not_run = rest
+                        .iter()
+                        .map(|&q| DayNotRun {
+                            offset: q,
+                            launch: self.opts.launch_of(self.centre, q),
+                            reason: if q == o {
+                                reason.clone()
+                            } else {
+                                format!("beyond day {o:+}, which could not run")
+                            },
+                        })
+                        .collect();
+                    return (out, not_run);
+                }
+            };
             self.progress.add(1);
             let stop = day.interrupted;
             out.push(day);
@@ -496,7 +539,7 @@ impl Ctx<'_> {
                 break;
             }
         }
-        Ok(out)
+        (out, Vec::new())
     }
 
     /// The start of a day: of the candidate starts built from its neighbour `prev` (and the day
@@ -953,6 +996,7 @@ impl PeriodResult {
     /// True when every requested day ran and meets every limit.
     pub fn every_day_meets_limits(&self) -> bool {
         !self.cancelled
+            && self.not_run.is_empty()
             && self.days.len() == self.options.days as usize
             && self.days.iter().all(PeriodDay::meets_every_limit)
     }
@@ -1097,6 +1141,16 @@ impl PeriodResult {
                 offsets_text(&s.days_with_jumps)
             ));
         }
+        if let Some(first) = self.not_run.first() {
+            let offsets: Vec<i64> = self.not_run.iter().map(|d| d.offset).collect();
+            out.push(format!(
+                "days that could not run: {} (day {:+}, {}: {})",
+                offsets_text(&offsets),
+                first.offset,
+                first.launch.to_date_utc(),
+                first.reason
+            ));
+        }
         if self.cancelled {
             out.push(format!(
                 "cancelled: {} of {} days finished",
@@ -1196,6 +1250,15 @@ impl PeriodResult {
                     evaluations: d.evaluations,
                 })
                 .collect(),
+            days_not_run: self
+                .not_run
+                .iter()
+                .map(|d| NotRunReport {
+                    day: d.offset,
+                    launch_utc: d.launch.to_iso_utc(),
+                    reason: d.reason.clone(),
+                })
+                .collect(),
             lines: self.summary_lines(),
         }
     }
@@ -1238,8 +1301,21 @@ pub struct PeriodReport {
     pub summary: SummaryReport,
     /// One per day that ran, in launch order.
     pub days: Vec<DayReport>,
+    /// The days that could not run, with the reason.
+    pub days_not_run: Vec<NotRunReport>,
     /// The summary in words.
     pub lines: Vec<String>,
+}
+
+/// A day of [`PeriodReport`] that could not run.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct NotRunReport {
+    /// Offset from the design's launch, in steps.
+    pub day: i64,
+    /// Its launch, ISO-8601 UTC.
+    pub launch_utc: String,
+    /// Why.
+    pub reason: String,
 }
 
 /// The summary of [`PeriodReport`].

@@ -499,7 +499,7 @@ fn the_design_field_loads_with_defaults_validates_and_round_trips() {
 }
 
 #[test]
-fn a_day_outside_the_ephemeris_range_is_named() {
+fn a_day_outside_the_ephemeris_range_is_named_and_the_others_kept() {
     // Mean elements end with 2050: a period around 2050-12-28 runs past it.
     let mut d = MissionDesign::new_blank();
     d.stops[0].epoch = Epoch::parse("2050-06-01").unwrap();
@@ -510,13 +510,27 @@ fn a_day_outside_the_ephemeris_range_is_named() {
         fixed_arrival: true,
         ..PeriodOptions::for_design(&d)
     };
-    assert!(period::run(&d, &o, &Progress::new()).is_ok());
+    let r = period::run(&d, &o, &Progress::new()).unwrap();
+    assert!(r.not_run.is_empty() && r.days.len() == 9);
     d.stops[0].epoch = Epoch::parse("2050-12-28").unwrap();
     d.stops[1].epoch = Epoch::parse("2050-12-31").unwrap();
-    let e = period::run(&d, &o, &Progress::new()).unwrap_err();
-    assert!(
-        matches!(e, PeriodError::Day { offset, .. } if offset > 0),
-        "{e}"
+    let r = period::run(&d, &o, &Progress::new()).unwrap();
+    // The days before the centre ran; the first day past the range is named with its reason,
+    // and every day beyond it is listed as not run.
+    assert!(!r.not_run.is_empty(), "{:?}", r.summary_lines());
+    assert!(r.not_run.iter().all(|n| n.offset > 0));
+    let last_run = r.days.iter().map(|x| x.offset).max().unwrap();
+    assert!(r.not_run.iter().all(|n| n.offset > last_run));
+    assert!(r.days.len() >= 5, "every day up to the centre ran");
+    assert_eq!(r.days.len() + r.not_run.len(), 9);
+    let first = &r.not_run[0];
+    assert!(first.reason.contains("range"), "{}", first.reason);
+    assert!(!r.every_day_meets_limits() && !r.cancelled);
+    let lines = r.summary_lines().join("\n");
+    assert!(lines.contains("days that could not run"), "{lines}");
+    let json = serde_json::to_value(r.report()).unwrap();
+    assert_eq!(
+        json["days_not_run"].as_array().unwrap().len(),
+        r.not_run.len()
     );
-    assert!(e.to_string().contains("launch period day +"), "{e}");
 }
