@@ -328,7 +328,7 @@ fn reshape_a_swingby_and_undo() {
     let turn0 = h.state().eval.stops[1].swingby.unwrap().turn_rad;
     let vout0 = h.state().eval.stops[1].vinf_out;
     // Keyboard on the altitude slider: each arrow press is a step of the slider.
-    let slider = h.get_by_role_and_label(Role::Slider, "periapsis altitude (km)");
+    let slider = h.get_by_role_and_label(Role::Slider, "altitude (km)");
     slider.focus();
     h.run_steps(1);
     for _ in 0..5 {

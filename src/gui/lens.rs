@@ -385,13 +385,19 @@ fn lens_controls(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Action
             mut altitude_km,
             mut aim_deg,
         } => {
-            let r1 = ui.add(
-                egui::Slider::new(&mut altitude_km, 0.0..=2.0e6)
-                    .logarithmic(true)
-                    .smallest_positive(50.0)
-                    .text("periapsis altitude (km)"),
-            );
-            let r2 = ui.add(egui::Slider::new(&mut aim_deg, -180.0..=180.0).text("aim angle (°)"));
+            // Sliders sized to the column (value and label beside them).
+            ui.spacing_mut().slider_width = (ui.available_width() - 150.0).clamp(60.0, 180.0);
+            let r1 = ui
+                .add(
+                    egui::Slider::new(&mut altitude_km, 0.0..=2.0e6)
+                        .logarithmic(true)
+                        .smallest_positive(50.0)
+                        .text("altitude (km)"),
+                )
+                .on_hover_text("Periapsis altitude above the surface");
+            let r2 = ui
+                .add(egui::Slider::new(&mut aim_deg, -180.0..=180.0).text("aim (°)"))
+                .on_hover_text("B-plane aim: the direction of B from T towards R");
             if r1.changed() || r2.changed() {
                 out.push(Action::EditLive(Edit::SetSwingbyMode {
                     stop: k,
