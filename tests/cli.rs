@@ -1200,6 +1200,13 @@ fn period_refuses_bad_numbers_and_never_writes_over_its_input() {
         e.contains("--step") && e.contains("at least an hour"),
         "{e}"
     );
+    // A negative step is a number to judge, as a negative --day is, not an unknown option.
+    let (code, e) = fail(&["--step".as_ref(), "-1".as_ref()]);
+    assert_eq!(code, Some(1));
+    assert!(
+        e.contains("--step") && e.contains("at least an hour"),
+        "{e}"
+    );
     let (code, e) = fail(&[
         "--days".as_ref(),
         "300".as_ref(),

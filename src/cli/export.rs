@@ -62,6 +62,14 @@ pub fn run(a: Args) -> CliResult {
     if a.oem.is_some() && !e.complete {
         return Err("the design has legs with no solution; no trajectory to export".into());
     }
+    if let (Some(_), Some(u)) = (&a.oem, e.first_unreached()) {
+        return Err(format!(
+            "stop {} is not reached (the shaped swing-by before it misses it); the trajectory \
+             after the miss is never flown — retarget that swing-by, then export",
+            u + 1
+        )
+        .into());
+    }
     if let Some(p) = &a.csv {
         write(p, &export::events_csv(&tour, &e))?;
     }

@@ -31,7 +31,7 @@ pub struct Args {
     #[arg(long)]
     pub days: Option<u32>,
     /// Days between opportunities (default: the design's launch_period, else 1).
-    #[arg(long)]
+    #[arg(long, allow_negative_numbers = true)]
     pub step: Option<f64>,
     /// Hold the arrival at the design's arrival date on every day (default: the design's
     /// launch_period, else free).
@@ -166,7 +166,17 @@ pub fn run(a: Args) -> CliResult {
     }
     if let (Some(k), Some(path)) = (a.day, &a.out) {
         match r.day(k) {
-            Some(day) => save_design(&day.design, path)?,
+            Some(day) => {
+                save_design(&day.design, path)?;
+                if path != std::path::Path::new("-") {
+                    // Confirmation on standard error: standard output may carry JSON or CSV.
+                    eprintln!(
+                        "wrote day {k:+} ({}) to {}",
+                        day.launch.to_date_utc(),
+                        path.display()
+                    );
+                }
+            }
             None => out(&format!(
                 "day {k:+} did not run (the period was interrupted); nothing written to {}",
                 path.display()
@@ -178,6 +188,7 @@ pub fn run(a: Args) -> CliResult {
         for day in &r.days {
             save_design(&day.design, &dir.join(day_file(day.offset)))?;
         }
+        eprintln!("wrote {} day designs to {}", r.days.len(), dir.display());
     }
     if a.json {
         out_json(&r.report())?;

@@ -127,6 +127,14 @@ pub fn export_to(app: &mut TourwrightApp, purpose: PathPurpose, p: &Path) {
                 );
                 return;
             }
+            if let Some(u) = e.first_unreached() {
+                app.dialogs.error = Some(format!(
+                    "Stop {} is not reached (the shaped swing-by before it misses it): the \
+                     trajectory after the miss is never flown. Retarget that swing-by, then export.",
+                    u + 1
+                ));
+                return;
+            }
             export::oem(tour, e, tourwright_astro::time::Epoch::now())
         }
         PathPurpose::ContinuousOem => match app

@@ -398,7 +398,12 @@ impl SunView {
         }
         let mut hover = None;
         let pointer = resp.hover_pos();
+        let unreached = e.first_unreached().unwrap_or(usize::MAX);
         for (k, d) in e.dsms() {
+            // A manoeuvre on a leg that is not flown: no marker, no figure.
+            if k + 1 >= unreached {
+                continue;
+            }
             let p = f.km(&d.r);
             self.dsm_markers.push((k, p));
             let col = style::leg_color(k);

@@ -813,8 +813,17 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), FileError> {
         .map_err(io)?;
     tmp.write_all(bytes).map_err(io)?;
     tmp.as_file().sync_all().map_err(io)?;
-    if let Some(m) = &old {
-        fs::set_permissions(tmp.path(), m.permissions()).map_err(io)?;
+    match &old {
+        Some(m) => fs::set_permissions(tmp.path(), m.permissions()).map_err(io)?,
+        // A new file gets the mode a plain create gives under the usual umask (022), not the
+        // temporary file's private 0600: designs and exports are shared documents.
+        #[cfg(unix)]
+        None => {
+            use std::os::unix::fs::PermissionsExt;
+            fs::set_permissions(tmp.path(), fs::Permissions::from_mode(0o644)).map_err(io)?
+        }
+        #[cfg(not(unix))]
+        None => {}
     }
     tmp.persist(&target).map_err(|e| io(e.error))?;
     Ok(())

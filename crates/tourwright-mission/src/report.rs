@@ -409,7 +409,8 @@ pub fn ledger(tour: &PreparedTour, e: &Evaluation) -> Table {
             Cell::Num(shown(e.ledger.wet_mass_kg)),
         ]);
     }
-    for k in 0..n {
+    let reach = e.ledger.flown.map_or(n, |p| p.first_unreached.min(n));
+    for k in 0..reach {
         let s = &e.stops[k];
         if k > 0 && s.dv_km_s > 0.0 {
             rows.push(vec![
@@ -435,6 +436,43 @@ pub fn ledger(tour: &PreparedTour, e: &Evaluation) -> Table {
         }
     }
     let l = &e.ledger;
+    if let Some(p) = l.flown {
+        // The rest of the tour is never flown: its manoeuvres and totals are not shown.
+        let row = |name: String, dv: Option<f64>, m: Option<f64>| {
+            vec![
+                Cell::Text(name),
+                text(""),
+                text(""),
+                Cell::Num(dv.and_then(shown)),
+                Cell::Num(m.and_then(shown)),
+            ]
+        };
+        rows.push(row(
+            format!(
+                "Δv and mass up to the miss (stop {} on not reached)",
+                p.first_unreached + 1
+            ),
+            Some(p.dv_km_s),
+            Some(p.mass_kg),
+        ));
+        rows.push(row(
+            "propellant needed (kg)".into(),
+            None,
+            Some(p.propellant_needed_kg),
+        ));
+        rows.push(row(
+            "propellant margin (kg)".into(),
+            None,
+            Some(p.propellant_margin_kg),
+        ));
+        if let Some(m) = l.lv_margin_kg {
+            rows.push(row("launch-vehicle margin (kg)".into(), None, Some(m)));
+        }
+        return Table {
+            columns: LEDGER_COLUMNS.to_vec(),
+            rows,
+        };
+    }
     let total = |name: &str, dv: Option<f64>, m: Option<f64>| {
         vec![
             text(name),
@@ -482,6 +520,19 @@ pub fn summary_line(tour: &PreparedTour, e: &Evaluation) -> String {
         Some(v) => format!("{v:.p$}"),
         None => "—".into(),
     };
+    // A tour that misses a body: the flown part only, and say so.
+    if let Some(p) = l.flown {
+        return format!(
+            "not reached from stop {} on · Δv up to the miss {} km/s · propellant {} of {} kg \
+             (margin {} kg) · C3 {} km²/s²",
+            p.first_unreached + 1,
+            f(p.dv_km_s, 3),
+            f(p.propellant_needed_kg, 0),
+            f(tour.spacecraft.propellant_kg, 0),
+            f(p.propellant_margin_kg, 0),
+            f(e.launch.c3, 2),
+        );
+    }
     let mut s = format!(
         "Δv total {} km/s · propellant {} of {} kg (margin {} kg) · final {} kg",
         f(l.total_dv_km_s, 3),
@@ -758,8 +809,11 @@ pub fn eval_report(tour: &PreparedTour, e: &Evaluation) -> EvalReport {
             }
         })
         .collect();
+    let reach = e.ledger.flown.map(|p| p.first_unreached);
     let dsms = e
         .dsms()
+        // A manoeuvre on a leg that is not flown is not reported.
+        .filter(|(k, _)| reach.is_none_or(|u| k + 1 < u))
         .map(|(k, d)| DsmReport {
             leg: k + 1,
             epoch_utc: d.t.to_iso_utc(),
@@ -788,19 +842,27 @@ pub fn eval_report(tour: &PreparedTour, e: &Evaluation) -> EvalReport {
             rla_deg: shown(e.launch.rla_deg),
             injected_mass_kg: e.launch.injected_mass_kg,
         },
+        // A tour that misses a body never arrives: no arrival figures, no total time of flight,
+        // and the budget of the flown part (its Δv and propellant; no final or delivered mass).
         arrival: ArrivalReport {
-            vinf_km_s: shown(e.arrival.vinf),
-            dv_km_s: shown(e.arrival.dv_km_s),
+            vinf_km_s: shown(e.arrival.vinf).filter(|_| reach.is_none()),
+            dv_km_s: shown(e.arrival.dv_km_s).filter(|_| reach.is_none()),
         },
-        total_tof_days: shown(e.total_tof_days()),
+        total_tof_days: shown(e.total_tof_days()).filter(|_| reach.is_none()),
         ledger: LedgerReport {
-            total_dv_km_s: shown(l.total_dv_km_s),
+            total_dv_km_s: shown(l.flown.map_or(l.total_dv_km_s, |p| p.dv_km_s)),
             wet_mass_kg: shown(l.wet_mass_kg),
-            propellant_needed_kg: shown(l.propellant_needed_kg),
-            propellant_margin_kg: shown(l.propellant_margin_kg),
-            final_mass_kg: shown(l.final_mass_kg),
+            propellant_needed_kg: shown(
+                l.flown
+                    .map_or(l.propellant_needed_kg, |p| p.propellant_needed_kg),
+            ),
+            propellant_margin_kg: shown(
+                l.flown
+                    .map_or(l.propellant_margin_kg, |p| p.propellant_margin_kg),
+            ),
+            final_mass_kg: shown(l.final_mass_kg).filter(|_| reach.is_none()),
             lv_margin_kg: l.lv_margin_kg,
-            delivered_mass_kg: l.delivered_mass_kg,
+            delivered_mass_kg: l.delivered_mass_kg.filter(|_| reach.is_none()),
             manoeuvres: ledger(tour, e)
                 .rows
                 .iter()
@@ -849,14 +911,25 @@ pub fn to_text(tour: &PreparedTour, e: &Evaluation) -> String {
             .map(|m| format!("  injected {m:.0} kg"))
             .unwrap_or_default()
     );
-    let _ = writeln!(
-        s,
-        "Arrival: v∞ {:.3} km/s  Δv {:.3} km/s  total TOF {:.1} days ({:.2} years)",
-        e.arrival.vinf,
-        e.arrival.dv_km_s,
-        e.total_tof_days(),
-        e.total_tof_days() / 365.25
-    );
+    match e.ledger.flown {
+        Some(p) => {
+            let _ = writeln!(
+                s,
+                "Arrival: not reached (stop {} and those after it are not reached)",
+                p.first_unreached + 1
+            );
+        }
+        None => {
+            let _ = writeln!(
+                s,
+                "Arrival: v∞ {:.3} km/s  Δv {:.3} km/s  total TOF {:.1} days ({:.2} years)",
+                e.arrival.vinf,
+                e.arrival.dv_km_s,
+                e.total_tof_days(),
+                e.total_tof_days() / 365.25
+            );
+        }
+    }
     let _ = writeln!(s);
     let _ = writeln!(s, "Ledger");
     s.push_str(&ledger(tour, e).to_text());

@@ -74,6 +74,17 @@ fn save_is_atomic_and_round_trips() {
     assert_eq!(back, d);
     // No temporary left behind.
     assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
+    // A new file is a shared document (0644), not the temporary file's private 0600; a file
+    // that existed keeps its own mode.
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        let mode = |p: &Path| std::fs::metadata(p).unwrap().permissions().mode() & 0o777;
+        assert_eq!(mode(&p), 0o644);
+        std::fs::set_permissions(&p, std::fs::Permissions::from_mode(0o600)).unwrap();
+        files::save(&d, &p).unwrap();
+        assert_eq!(mode(&p), 0o600);
+    }
     // A save that fails validation leaves the old file as it was.
     let before = std::fs::read_to_string(&p).unwrap();
     let mut bad = d.clone();
@@ -617,4 +628,39 @@ fn stops_after_a_miss_are_not_reached_in_every_report() {
     assert_eq!(reached, [true, true, false, false]);
     assert_eq!(json.stops[2].kind, "Swing-by");
     assert!(json.stops[2].vinf_in_km_s.is_none() && json.stops[2].swingby.is_none());
+    // The budget is the flown part's: launch and Venus spend nothing (Lantern's only manoeuvres,
+    // the leg-3 DSM and the capture, lie after the miss), so no propellant is needed; nothing
+    // arrives, so there is no arrival, final or delivered mass, and the manoeuvre on the leg
+    // that is never flown is not reported.
+    let p = e.ledger.flown.expect("the flown part");
+    assert_eq!(p.first_unreached, 2);
+    assert!(p.dv_km_s.abs() < 1e-12 && p.propellant_needed_kg.abs() < 1e-9);
+    assert!(
+        e.ledger.total_dv_km_s > 1.0,
+        "the planned totals stay for the search"
+    );
+    assert!(
+        !e.warnings
+            .iter()
+            .any(|w| matches!(w, Warning::PropellantShort { .. })),
+        "{:?}",
+        e.warnings
+    );
+    assert_eq!(json.ledger.total_dv_km_s, Some(0.0));
+    assert!(json.ledger.final_mass_kg.is_none() && json.ledger.delivered_mass_kg.is_none());
+    assert!(json.arrival.vinf_km_s.is_none() && json.total_tof_days.is_none());
+    assert!(json.dsms.is_empty());
+    let text = tourwright_mission::report::to_text(&t, &e);
+    assert!(text.contains("Arrival: not reached"), "{text}");
+    let line = tourwright_mission::report::summary_line(&t, &e);
+    assert!(line.starts_with("not reached from stop 3 on"), "{line}");
+    let ledger = tourwright_mission::report::ledger(&t, &e);
+    assert!(
+        !ledger
+            .rows
+            .iter()
+            .any(|r| r[0].display(0).contains("deep-space")),
+        "{:?}",
+        ledger.rows
+    );
 }

@@ -1,6 +1,6 @@
 //! Launch and arrival figures, heliocentric energies along the tour, and the Δv and mass ledger.
 
-use super::{Evaluation, Ledger, Warning};
+use super::{Evaluation, FlownPart, Ledger, Warning};
 use crate::arrival::arrival_dv;
 use crate::launch;
 use crate::tour::PreparedTour;
@@ -90,14 +90,27 @@ pub fn energies(mu_sun: f64, out: &mut Evaluation) {
 }
 
 /// The Δv total, masses after each manoeuvre (rocket equation), propellant and vehicle margins.
+/// When a shaped swing-by misses its next body, the flown part's budget too; the propellant is
+/// then judged on the flown part (the rest is never flown).
 pub fn ledger(tour: &PreparedTour, out: &mut Evaluation) {
     let sc = &tour.spacecraft;
     let wet = sc.dry_mass_kg + sc.propellant_kg;
+    let unreached = out.first_unreached();
     let mut m = wet;
     let mut ratio_total = 1.0;
     let mut total_dv = 0.0;
+    let mut flown = None;
     // In time order: each stop's manoeuvre, then the manoeuvre on the leg that leaves it.
     for (k, s) in out.stops.iter_mut().enumerate() {
+        if unreached == Some(k) {
+            flown = Some(FlownPart {
+                first_unreached: k,
+                dv_km_s: total_dv,
+                propellant_needed_kg: wet - m,
+                propellant_margin_kg: sc.propellant_kg - (wet - m),
+                mass_kg: m,
+            });
+        }
         let r = launch::mass_ratio(s.dv_km_s, sc.isp_s);
         m *= r;
         ratio_total *= r;
@@ -120,10 +133,12 @@ pub fn ledger(tour: &PreparedTour, out: &mut Evaluation) {
         final_mass_kg: m,
         lv_margin_kg: out.launch.injected_mass_kg.map(|c| c - wet),
         delivered_mass_kg: out.launch.injected_mass_kg.map(|c| c * ratio_total),
+        flown,
     };
-    if needed > sc.propellant_kg + 1e-9 {
+    let judged = flown.map_or(needed, |f| f.propellant_needed_kg);
+    if judged > sc.propellant_kg + 1e-9 {
         out.warnings.push(Warning::PropellantShort {
-            needed_kg: needed,
+            needed_kg: judged,
             loaded_kg: sc.propellant_kg,
         });
     }

@@ -211,6 +211,25 @@ pub struct Ledger {
     pub lv_margin_kg: Option<f64>,
     /// Mass delivered after all manoeuvres when the launch vehicle is filled to capacity, kg.
     pub delivered_mass_kg: Option<f64>,
+    /// When a shaped swing-by misses its next body: the budget of the part that is flown (the
+    /// stops before the first one not reached). The totals above cover the whole planned tour,
+    /// as the search needs them; reports show this part instead.
+    pub flown: Option<FlownPart>,
+}
+
+/// The budget of the flown part of a tour that misses a body (see [`Ledger::flown`]).
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct FlownPart {
+    /// The first stop not reached (index).
+    pub first_unreached: usize,
+    /// Spacecraft Δv up to the miss, km/s.
+    pub dv_km_s: f64,
+    /// Propellant that Δv needs, kg.
+    pub propellant_needed_kg: f64,
+    /// Propellant loaded minus needed, kg.
+    pub propellant_margin_kg: f64,
+    /// Mass when the swing-by that misses is flown, kg.
+    pub mass_kg: f64,
 }
 
 /// Something the designer should know, with its reason.
