@@ -203,6 +203,9 @@ fn direct_result(ui: &mut egui::Ui, c: &DirectComparison, stale: bool) -> bool {
         ),
     };
     Plot::new("dva-chart")
+        // Inside a scrolling page: the wheel scrolls the page.
+        .allow_scroll(false)
+        .allow_zoom(false)
         .height((ui.available_height() - 24.0).clamp(120.0, 260.0))
         .legend(Legend::default())
         .show_axes([false, true])

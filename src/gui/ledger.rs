@@ -12,7 +12,7 @@ use super::context::ViewCtx;
 use super::style;
 
 /// Warnings listed in full above the table; more are counted, and listed on hover.
-const WARNINGS_SHOWN: usize = 3;
+const WARNINGS_SHOWN: usize = 2;
 
 /// The ledger panel.
 #[derive(Default)]
@@ -75,10 +75,15 @@ fn table(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
     egui::ScrollArea::horizontal()
         .id_salt("ledger-h")
         .show(ui, |ui| {
+            // The rows scroll inside whatever height the panel has (the table's own default
+            // minimum of 200 points pushed a short ledger's heading off the window).
+            let h = ui.available_height();
             let mut t = TableBuilder::new(ui)
                 .id_salt("ledger-table")
                 .striped(true)
                 .resizable(false)
+                .min_scrolled_height(0.0)
+                .max_scroll_height((h - row_h).max(row_h))
                 .auto_shrink([false, true])
                 .cell_layout(egui::Layout::left_to_right(egui::Align::Center));
             for (i, _) in LEDGER_VIEW_COLUMNS.iter().enumerate() {

@@ -44,7 +44,7 @@ impl PeriodView {
                     );
                     return;
                 };
-                if r.revision != vc.revision {
+                if r.value.base != *vc.design {
                     ui.label(
                         RichText::new(
                             "(for an earlier version of the design; compute again to update)",
@@ -142,6 +142,17 @@ impl PeriodView {
                 ],
             ),
         ];
+        // The day under the pointer (last frame's), above the plots so it is always in view.
+        match self.hovered.and_then(|o| r.day(o)) {
+            Some(day) => ui.label(day_line(day)),
+            None => ui.label(
+                RichText::new(
+                    "Hover a day for its figures; click it to open its tour. Drag a plot to \
+                     pan it, double-click to reset.",
+                )
+                .weak(),
+            ),
+        };
         let n = series.len();
         for (i, (label, value, lines)) in series.into_iter().enumerate() {
             // The day axis is shared (linked): its title under the last plot only.
@@ -152,6 +163,9 @@ impl PeriodView {
             };
             let resp = Plot::new(("launch-period", i))
                 .height(h)
+                // The page scrolls with the wheel; the plots pan by drag (double-click resets).
+                .allow_scroll(false)
+                .allow_zoom(false)
                 .legend(Legend::default().position(egui_plot::Corner::RightTop))
                 .link_axis(egui::Id::unique("launch-period-x"), [true, false])
                 .link_cursor(egui::Id::unique("launch-period-x"), [true, false])
@@ -220,14 +234,7 @@ impl PeriodView {
             clicked |= resp.response.clicked();
         }
         self.hovered = hovered;
-        let Some(day) = hovered.and_then(|o| r.day(o)) else {
-            ui.label(
-                RichText::new("Hover a day for its figures; click it to open its tour.").weak(),
-            );
-            return;
-        };
-        ui.label(day_line(day));
-        if clicked {
+        if let Some(day) = hovered.and_then(|o| r.day(o)).filter(|_| clicked) {
             open(day, out);
         }
     }

@@ -387,6 +387,8 @@ pub struct PeriodResult {
     /// True when the run was cancelled: `days` holds the days finished until then (a day cut
     /// short is marked `interrupted`).
     pub cancelled: bool,
+    /// The design the period was computed for.
+    pub base: MissionDesign,
     /// Days that could not run (a launch or an encounter outside the ephemeris' range, say),
     /// with the reason: the first such day on each side and every day beyond it.
     pub not_run: Vec<DayNotRun>,
@@ -468,6 +470,7 @@ pub fn run(
         days,
         summary,
         not_run,
+        base: design.clone(),
     })
 }
 
