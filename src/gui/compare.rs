@@ -120,7 +120,15 @@ fn direct_result(ui: &mut egui::Ui, c: &DirectComparison, stale: bool) -> bool {
     if let Some(note) = c.limits_note() {
         ui.label(RichText::new(note).color(super::style::warn_color(ui.visuals().dark_mode)));
     }
-    ui.label(RichText::new(c.summary()).heading());
+    // The headline compares with a direct transfer that breaks a launch limit: say so in it.
+    let headline = match c.limits_note() {
+        Some(_) => format!(
+            "{} (that direct transfer breaks the design's launch limits)",
+            c.summary().trim_end_matches('.')
+        ),
+        None => c.summary(),
+    };
+    ui.label(RichText::new(headline).heading());
     egui::Grid::new("dva")
         .striped(true)
         .num_columns(4)

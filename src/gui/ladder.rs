@@ -239,11 +239,12 @@ impl LadderView {
     }
 }
 
-/// The legend's corner: the bottom right when the tour climbs in energy (the first stop sits low
-/// on the left, the last high on the right), the top right when it descends.
+/// The legend's corner: the top left when the tour climbs in energy (the first stop sits low on
+/// the left, the last high on the right, and the labels of both sit beside them), the top right
+/// when it descends.
 fn legend_corner(e: &tourwright_mission::evaluate::Evaluation) -> egui_plot::Corner {
     match (e.stops.first(), e.stops.last()) {
         (Some(a), Some(b)) if b.energy_before < a.energy_after => egui_plot::Corner::RightTop,
-        _ => egui_plot::Corner::RightBottom,
+        _ => egui_plot::Corner::LeftTop,
     }
 }
