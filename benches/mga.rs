@@ -3,7 +3,9 @@
 //! figure is deterministic for its seed), and prints best, median, worst and mean time per row
 //! beside the published best-known value. `cargo bench --bench mga`.
 //!
-//! `TOURWRIGHT_MGA_SEEDS=N` runs fewer seeds; `TOURWRIGHT_MGA_ONLY=cassini1` runs one problem.
+//! `TOURWRIGHT_MGA_SEEDS=N` runs fewer seeds; `TOURWRIGHT_MGA_ONLY=cassini1` runs one problem
+//! (its file name without `.tour.ron`; several with commas); `TOURWRIGHT_MGA_EVALS=N` runs one budget of N evaluations in the
+//! benchmark model only (for spot checks); `TOURWRIGHT_MGA_VERBOSE=1` prints every seed's value.
 
 use std::path::Path;
 use std::time::Instant;
@@ -39,6 +41,27 @@ const PROBLEMS: &[Bench] = &[
         budgets: &[6_000_000, 18_000_000],
         mean_budgets: &[6_000_000],
     },
+    Bench {
+        file: "rosetta.tour.ron",
+        published: 1.3433,
+        source: "Rosetta (MGA-1DSM), Vinkó & Izzo 2008 set, from memory",
+        budgets: &[6_000_000],
+        mean_budgets: &[],
+    },
+    Bench {
+        file: "messenger.tour.ron",
+        published: 8.630,
+        source: "Messenger reduced (MGA-1DSM), Vinkó & Izzo 2008 set",
+        budgets: &[6_000_000],
+        mean_budgets: &[],
+    },
+    Bench {
+        file: "messenger_full.tour.ron",
+        published: 1.959,
+        source: "Messenger full (MGA-1DSM), Vinkó & Izzo 2008 set, from memory",
+        budgets: &[18_000_000],
+        mean_budgets: &[],
+    },
 ];
 
 fn main() {
@@ -48,12 +71,19 @@ fn main() {
         .and_then(|s| s.parse().ok())
         .unwrap_or(10);
     let only = std::env::var("TOURWRIGHT_MGA_ONLY").ok();
+    let evals: Option<u64> = std::env::var("TOURWRIGHT_MGA_EVALS")
+        .ok()
+        .and_then(|s| s.parse().ok());
+    let verbose = std::env::var("TOURWRIGHT_MGA_VERBOSE").is_ok();
     println!(
         "| problem | ephemeris | evaluations | seeds | best (km/s) | median | worst | feasible | mean time (s) | published best (km/s) |"
     );
     println!("|---|---|---|---|---|---|---|---|---|---|");
     for bench in PROBLEMS {
-        if only.as_deref().is_some_and(|o| !bench.file.starts_with(o)) {
+        if only.as_deref().is_some_and(|o| {
+            !o.split(',')
+                .any(|o| bench.file.starts_with(&format!("{o}.")))
+        }) {
             continue;
         }
         let design = files::load(&dir.join(bench.file)).expect("benchmark design loads");
@@ -62,10 +92,12 @@ fn main() {
             d.ephemeris = model.clone();
             let p = Problem::from_design(&d).expect("benchmark design has valid bounds");
             let mut work = Workspace::new(&p);
-            let budgets = if model == EphemerisChoice::MgaBenchmark {
-                bench.budgets
-            } else {
-                bench.mean_budgets
+            let one = evals.map(|n| [n]);
+            let budgets: &[u64] = match (&one, model == EphemerisChoice::MgaBenchmark) {
+                (Some(n), true) => n,
+                (Some(_), false) => &[],
+                (None, true) => bench.budgets,
+                (None, false) => bench.mean_budgets,
             };
             for &budget in budgets {
                 let mut vals = Vec::new();
@@ -84,6 +116,9 @@ fn main() {
                     );
                     if p.feasible(&r.x, &mut work) {
                         feasible += 1;
+                    }
+                    if verbose {
+                        eprintln!("{} seed {seed}: {:.4}", bench.file, r.value);
                     }
                     vals.push(r.value);
                 }

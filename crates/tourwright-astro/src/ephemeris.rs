@@ -413,6 +413,14 @@ impl EphemerisModel {
         }
     }
 
+    /// The astronomical unit that goes with this model, km (user bodies' elements are in AU).
+    pub fn au_km(&self) -> f64 {
+        match self {
+            EphemerisModel::MeanElements | EphemerisModel::Kernel(_) => AU_KM,
+            EphemerisModel::MgaBenchmark => crate::mga_model::AU_KM,
+        }
+    }
+
     /// Instants this model covers.
     pub fn range(&self) -> (Tdb, Tdb) {
         match self {
@@ -454,27 +462,41 @@ pub struct OsculatingOrbit {
     tp_offset_s: f64,
     /// The element epoch as engine time (converted once).
     t_elements: Tdb,
+    /// Heliocentric gravitational parameter the orbit is propagated with, km³/s².
+    mu_sun: f64,
+    /// Kilometres per AU of the elements.
+    au_km: f64,
 }
 
 impl OsculatingOrbit {
-    /// Build from elements; fails for non-physical values.
+    /// Build from elements with the program's own μ☉ and AU; fails for non-physical values.
     pub fn new(el: OsculatingElements) -> Result<Self, EphemerisError> {
+        Self::with_constants(el, MU_SUN, AU_KM)
+    }
+
+    /// Build from elements read with an ephemeris model's μ☉ (km³/s²) and AU (km), so that a
+    /// user body moves in the same solar system as the model's planets.
+    pub fn with_constants(
+        el: OsculatingElements,
+        mu_sun: f64,
+        au_km: f64,
+    ) -> Result<Self, EphemerisError> {
         if !(el.q_au > 0.0) || !(el.e >= 0.0) || !el.q_au.is_finite() || !el.e.is_finite() {
             return Err(EphemerisError::Orbit(
                 "perihelion distance must be positive and eccentricity non-negative".into(),
             ));
         }
         let tp_offset_s = if el.e < 1.0 {
-            let a = el.q_au * AU_KM / (1.0 - el.e);
-            let n = (MU_SUN / (a * a * a)).sqrt();
+            let a = el.q_au * au_km / (1.0 - el.e);
+            let n = (mu_sun / (a * a * a)).sqrt();
             el.mean_anomaly_deg * DEG / n
         } else {
-            let q = el.q_au * AU_KM;
+            let q = el.q_au * au_km;
             if (el.e - 1.0).abs() < 1e-9 {
-                el.mean_anomaly_deg * DEG / (MU_SUN / (2.0 * q * q * q)).sqrt()
+                el.mean_anomaly_deg * DEG / (mu_sun / (2.0 * q * q * q)).sqrt()
             } else {
                 let a = q / (el.e - 1.0);
-                el.mean_anomaly_deg * DEG / (MU_SUN / (a * a * a)).sqrt()
+                el.mean_anomaly_deg * DEG / (mu_sun / (a * a * a)).sqrt()
             }
         };
         if !tp_offset_s.is_finite() {
@@ -487,7 +509,21 @@ impl OsculatingOrbit {
             elements: el,
             tp_offset_s,
             t_elements: el.epoch.tdb(),
+            mu_sun,
+            au_km,
         })
+    }
+}
+
+impl OsculatingOrbit {
+    /// Kilometres per AU the elements are read with.
+    pub fn au_km(&self) -> f64 {
+        self.au_km
+    }
+
+    /// Heliocentric gravitational parameter the orbit moves under, km³/s².
+    pub fn mu_sun(&self) -> f64 {
+        self.mu_sun
     }
 }
 
@@ -495,9 +531,9 @@ impl Ephemeris for OsculatingOrbit {
     fn state(&self, t: Tdb) -> Result<State, EphemerisError> {
         check_range(t, self.valid_range())?;
         let el = &self.elements;
-        let q = el.q_au * AU_KM;
+        let q = el.q_au * self.au_km;
         let dt = t.0 - self.t_elements.0 + self.tp_offset_s;
-        let nu = kepler::true_anomaly_from_time(q, el.e, MU_SUN, dt);
+        let nu = kepler::true_anomaly_from_time(q, el.e, self.mu_sun, dt);
         let e = Elements {
             p: q * (1.0 + el.e),
             e: el.e,
@@ -506,7 +542,7 @@ impl Ephemeris for OsculatingOrbit {
             argp: el.argp_deg * DEG,
             nu,
         };
-        e.to_state(MU_SUN)
+        e.to_state(self.mu_sun)
             .map_err(|x| EphemerisError::Orbit(x.to_string()))
     }
     fn valid_range(&self) -> (Tdb, Tdb) {

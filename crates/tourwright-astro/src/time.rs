@@ -61,6 +61,11 @@ pub enum TimeError {
         "'{0}' is not a date (expected YYYY-MM-DD or YYYY-MM-DDTHH:MM:SS[.fffffffff] with optional UTC or TDB)"
     )]
     Syntax(String),
+    /// A day count that is not a decimal number of days.
+    #[error(
+        "'{0}' is not a day count (expected MJD 52504.2375 or MJD2000 960.2375, a decimal number of days, with optional UTC or TDB)"
+    )]
+    DayCount(String),
     /// A field is out of its range (month 13, day 32, second 60 on a day without a leap second).
     #[error("'{0}': {1} out of range")]
     Range(String, &'static str),
@@ -470,7 +475,9 @@ impl Epoch {
     }
 
     /// Parse ISO-8601 text: `YYYY-MM-DD`, optionally `THH:MM[:SS[.f…]]` (up to nanoseconds),
-    /// optionally followed by `Z`, ` UTC` or ` TDB`. Without a scale the text is read as UTC.
+    /// optionally followed by `Z`, ` UTC` or ` TDB`; or a day count, `MJD 52504.2375` (modified
+    /// Julian date) or `MJD2000 960.2375` (days since 2000-01-01 00:00), with the same optional
+    /// scale. Without a scale the text is read as UTC.
     pub fn parse(text: &str) -> Result<Epoch, TimeError> {
         let t = text.trim();
         let syntax = || TimeError::Syntax(text.chars().take(80).collect());
@@ -486,6 +493,12 @@ impl Epoch {
         } else {
             (t, TimeScale::Utc)
         };
+        if let Some(days) = body.strip_prefix("MJD2000") {
+            return Self::from_day_count(text, days, MJD_2000, scale);
+        }
+        if let Some(days) = body.strip_prefix("MJD") {
+            return Self::from_day_count(text, days, 0, scale);
+        }
         let (date, time) = match body.split_once(['T', ' ']) {
             Some((d, tm)) => (d, Some(tm.trim())),
             None => (body, None),
@@ -537,6 +550,65 @@ impl Epoch {
         Epoch::from_calendar(scale, c).map_err(|e| match e {
             TimeError::Range(_, what) => TimeError::Range(text.trim().to_string(), what),
             other => other,
+        })
+    }
+}
+
+impl Epoch {
+    /// A day count `days` (decimal text, sign allowed) after MJD `origin`, to the nanosecond.
+    /// A day of the count is 86 400 s; in UTC the count runs over calendar days, so a fraction
+    /// on a leap-second day lands as if the day had 86 400 s (as MJD counts are used).
+    fn from_day_count(
+        text: &str,
+        days: &str,
+        origin: i64,
+        scale: TimeScale,
+    ) -> Result<Epoch, TimeError> {
+        let syntax = || TimeError::DayCount(text.trim().chars().take(80).collect());
+        let d = days.trim();
+        if !days.starts_with(' ') || d.is_empty() {
+            return Err(syntax());
+        }
+        let (negative, d) = match d.strip_prefix('-') {
+            Some(rest) => (true, rest),
+            None => (false, d.strip_prefix('+').unwrap_or(d)),
+        };
+        let (whole, frac) = d.split_once('.').unwrap_or((d, ""));
+        let all_digits = |p: &str| p.bytes().all(|b| b.is_ascii_digit());
+        if whole.is_empty() || whole.len() > 7 || !all_digits(whole) || !all_digits(frac) {
+            return Err(syntax());
+        }
+        if frac.len() > 18 {
+            return Err(syntax());
+        }
+        let whole: i128 = whole.parse().map_err(|_| syntax())?;
+        // The fraction to the nanosecond, rounded half up, from its digits (no binary rounding).
+        let frac_ns = if frac.is_empty() {
+            0
+        } else {
+            let digits: i128 = frac.parse().map_err(|_| syntax())?;
+            let scale10 = 10i128.pow(frac.len() as u32);
+            (digits * NS_PER_DAY * 2 + scale10) / (scale10 * 2)
+        };
+        let mut ns = whole * NS_PER_DAY + frac_ns;
+        if negative {
+            ns = -ns;
+        }
+        ns += origin as i128 * NS_PER_DAY;
+        let mjd = ns.div_euclid(NS_PER_DAY);
+        let nanos = ns.rem_euclid(NS_PER_DAY);
+        let year_range =
+            mjd_from_calendar(0, 1, 1) as i128..=mjd_from_calendar(9999, 12, 31) as i128;
+        if !year_range.contains(&mjd) {
+            return Err(TimeError::Range(
+                text.trim().to_string(),
+                "year (0000-9999)",
+            ));
+        }
+        Ok(Epoch {
+            scale,
+            mjd: mjd as i32,
+            nanos: nanos as u64,
         })
     }
 }
@@ -708,5 +780,43 @@ mod tests {
         let t = Tdb(1.234_567_890_123e9);
         let back = Epoch::from_tdb(t, TimeScale::Tdb).tdb();
         assert!((back.0 - t.0).abs() < 1e-6);
+    }
+
+    #[test]
+    fn day_counts_read_as_the_same_instants_as_calendar_dates() {
+        // MJD 51544 is 2000-01-01 (common practice: MJD = JD − 2400000.5).
+        let cal = Epoch::parse("2002-08-20T05:42:03.456 TDB").unwrap();
+        // 2002-08-20 is MJD 52506; 05:42:03.456 is 20523.456 s = 0.23754 days.
+        let mjd = Epoch::parse("MJD 52506.23754 TDB").unwrap();
+        let mjd2000 = Epoch::parse("MJD2000 962.23754 TDB").unwrap();
+        assert_eq!(mjd, cal);
+        assert_eq!(mjd2000, cal);
+        assert!((mjd2000.mjd2000() - 962.23754).abs() < 1e-9);
+        // Negative MJD2000 (the Cassini launch window) and a whole number with no fraction.
+        let neg = Epoch::parse("MJD2000 -789.8117 TDB").unwrap();
+        assert!((neg.mjd2000() + 789.8117).abs() < 1e-9);
+        assert_eq!(
+            Epoch::parse("MJD2000 0 TDB").unwrap(),
+            Epoch::parse("2000-01-01 TDB").unwrap()
+        );
+        // The scale rule is the calendar's: none means UTC.
+        assert_eq!(Epoch::parse("MJD 52506.5").unwrap().scale(), TimeScale::Utc);
+        // Many digits round to the nanosecond, not through binary fractions.
+        let fine = Epoch::parse("MJD 52504.23754000012 TDB").unwrap();
+        assert_eq!(fine.to_iso(), "2002-08-18T05:42:03.456010368 TDB");
+        for bad in [
+            "MJD",
+            "MJD2000",
+            "MJD 12a",
+            "MJD 1.2.3",
+            "MJD2000 .5",
+            "MJD52504",
+            "MJD 1e3",
+            "MJD2000 99999999",
+        ] {
+            assert!(Epoch::parse(bad).is_err(), "{bad}");
+        }
+        let e = Epoch::parse("MJD 12a TDB").unwrap_err().to_string();
+        assert!(e.contains("day count") && e.contains("MJD2000"), "{e}");
     }
 }

@@ -7,7 +7,6 @@ use std::sync::Arc;
 
 use tourwright_astro::State;
 use tourwright_astro::bodies::{BodyData, Planet};
-use tourwright_astro::constants::{AU_KM, MU_SUN};
 use tourwright_astro::ephemeris::{
     Ephemeris, EphemerisError, EphemerisModel, OsculatingOrbit, PlanetEphemeris,
 };
@@ -114,7 +113,7 @@ impl Body {
             BodyEphemeris::Planet(p) => p.a_km(),
             BodyEphemeris::User(o) => {
                 let e = &o.elements;
-                let q = e.q_au * AU_KM;
+                let q = e.q_au * o.au_km();
                 if e.e < 1.0 { q / (1.0 - e.e) } else { q }
             }
         }
@@ -139,35 +138,6 @@ pub struct Catalog {
 impl Catalog {
     /// The catalogue of a design: the planets under its ephemeris model and its user bodies.
     pub fn of(d: &MissionDesign) -> Result<Catalog, Invalid> {
-        let mut users = Vec::with_capacity(d.user_bodies.len());
-        for (i, u) in d.user_bodies.iter().enumerate() {
-            let orbit = OsculatingOrbit::new(u.elements).map_err(|e| Invalid {
-                field: format!("user_bodies[{i}].elements"),
-                reason: e.to_string(),
-            })?;
-            let mu = u.mu_km3_s2;
-            let a = if u.elements.e < 1.0 {
-                u.elements.q_au * AU_KM / (1.0 - u.elements.e)
-            } else {
-                0.0
-            };
-            let soi = if mu > 0.0 && a > 0.0 {
-                a * (mu / MU_SUN).powf(0.4)
-            } else {
-                0.0
-            };
-            users.push(Body {
-                name: u.name.as_str().into(),
-                id: BodyId::User(i),
-                data: BodyData {
-                    mu,
-                    radius_km: u.radius_km,
-                    min_altitude_km: 0.0,
-                    soi_km: soi,
-                },
-                ephemeris: BodyEphemeris::User(orbit),
-            });
-        }
         let model = match &d.ephemeris {
             EphemerisChoice::MeanElements => EphemerisModel::MeanElements,
             EphemerisChoice::MgaBenchmark => EphemerisModel::MgaBenchmark,
@@ -186,6 +156,41 @@ impl Catalog {
                 EphemerisModel::Kernel(kernel)
             }
         };
+        // User bodies move in the model's solar system: its μ☉ and its AU (the benchmark model
+        // has its own), not the program's.
+        let (mu_sun, au_km) = (model.mu_sun(), model.au_km());
+        let mut users = Vec::with_capacity(d.user_bodies.len());
+        for (i, u) in d.user_bodies.iter().enumerate() {
+            let orbit =
+                OsculatingOrbit::with_constants(u.elements, mu_sun, au_km).map_err(|e| {
+                    Invalid {
+                        field: format!("user_bodies[{i}].elements"),
+                        reason: e.to_string(),
+                    }
+                })?;
+            let mu = u.mu_km3_s2;
+            let a = if u.elements.e < 1.0 {
+                u.elements.q_au * au_km / (1.0 - u.elements.e)
+            } else {
+                0.0
+            };
+            let soi = if mu > 0.0 && a > 0.0 {
+                a * (mu / mu_sun).powf(0.4)
+            } else {
+                0.0
+            };
+            users.push(Body {
+                name: u.name.as_str().into(),
+                id: BodyId::User(i),
+                data: BodyData {
+                    mu,
+                    radius_km: u.radius_km,
+                    min_altitude_km: 0.0,
+                    soi_km: soi,
+                },
+                ephemeris: BodyEphemeris::User(orbit),
+            });
+        }
         Ok(Catalog { model, users })
     }
 

@@ -664,3 +664,74 @@ fn stops_after_a_miss_are_not_reached_in_every_report() {
         ledger.rows
     );
 }
+
+#[test]
+fn user_bodies_follow_the_selected_models_constants_and_epochs_take_day_counts() {
+    use tourwright_astro::ephemeris::{Ephemeris, OsculatingOrbit};
+    use tourwright_astro::mga_model;
+    use tourwright_mission::design::EphemerisChoice;
+    use tourwright_mission::tour::Catalog;
+    let p = samples()
+        .into_iter()
+        .find(|p| p.to_string_lossy().contains("wayfarer"))
+        .unwrap();
+    let text = std::fs::read_to_string(&p).unwrap();
+    let calendar = files::load(&p).unwrap();
+    let name = calendar.user_bodies[0].name.clone();
+    // The same element epoch written as an MJD and as an MJD2000 day count (2029-12-31 is
+    // MJD 62501, MJD2000 10957; 23:58:50.816 is 86330.816 s, 0.99919925925... of the day).
+    let at = calendar.user_bodies[0].elements.epoch.tdb().0;
+    for form in [
+        "MJD 62501.999199259259 UTC",
+        "MJD2000 10957.999199259259 UTC",
+    ] {
+        let t = text.replace("2029-12-31T23:58:50.816 UTC", form);
+        let d = files::from_str(&t, &p).unwrap();
+        let got = d.user_bodies[0].elements.epoch.tdb().0;
+        assert!((got - at).abs() < 1e-6, "{form}: {} s", got - at);
+    }
+    // A malformed day count names the line of the field and the forms it may take.
+    let bad = text.replace("2029-12-31T23:58:50.816 UTC", "MJD 6250l.5 UTC");
+    match files::from_str(&bad, &p) {
+        Err(FileError::Parse { line, reason, .. }) => {
+            let want = text
+                .lines()
+                .position(|l| l.contains("2029-12-31T23:58:50.816"))
+                .unwrap()
+                + 1;
+            assert_eq!(line, want);
+            assert!(reason.contains("MJD2000"), "{reason}");
+        }
+        other => panic!("{other:?}"),
+    }
+    // In the benchmark model the body moves with the model's μ☉ and AU, not the program's.
+    let mut d = calendar.clone();
+    d.ephemeris = EphemerisChoice::MgaBenchmark;
+    let cat = Catalog::of(&d).unwrap();
+    let body = cat.body(&name).unwrap();
+    let el = d.user_bodies[0].elements;
+    let model = OsculatingOrbit::with_constants(el, mga_model::MU_SUN, mga_model::AU_KM).unwrap();
+    let program = OsculatingOrbit::new(el).unwrap();
+    let t = tourwright_astro::time::Tdb(el.epoch.tdb().0 + 400.0 * 86_400.0);
+    let s = body.state(t).unwrap();
+    assert_relative_eq!(
+        (s.r - model.state(t).unwrap().r).norm(),
+        0.0,
+        epsilon = 1e-6
+    );
+    let apart = (s.r - program.state(t).unwrap().r).norm();
+    assert!(apart > 10.0, "{apart} km");
+    assert_relative_eq!(
+        body.mean_distance_km(),
+        el.q_au * mga_model::AU_KM / (1.0 - el.e),
+        max_relative = 1e-14
+    );
+    // Under the mean elements it is the program's own.
+    let cat = Catalog::of(&calendar).unwrap();
+    let s = cat.body(&name).unwrap().state(t).unwrap();
+    assert_relative_eq!(
+        (s.r - program.state(t).unwrap().r).norm(),
+        0.0,
+        epsilon = 1e-6
+    );
+}

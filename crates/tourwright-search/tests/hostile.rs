@@ -518,6 +518,7 @@ fn fuzz(seed: u64, cases: usize, deep_every: usize) {
         "sample-missions/osprey-jupiter-eej.tour.ron",
         "benches/mga/cassini1.tour.ron",
         "benches/mga/cassini2.tour.ron",
+        "benches/mga/rosetta.tour.ron",
     ]
     .iter()
     .map(|p| std::fs::read_to_string(root().join(p)).unwrap())

@@ -18,11 +18,13 @@
 
 use rayon::prelude::*;
 
-use super::problem::{Problem, Workspace};
+use super::problem::{DsmStartVars, Problem, Workspace, launch_angles};
 use super::rng::Rng;
 use crate::job::Progress;
 use crate::polish::{LocalOptions, auglag_box, clamp_safe, lm_sum_of_norms};
 use tourwright_mission::Schedule;
+use tourwright_mission::evaluate::legs;
+use tourwright_mission::launch::asymptote_vector;
 
 /// Optimiser settings.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -227,6 +229,14 @@ impl Worker {
     }
 }
 
+/// Share of the leg redraws that set up a resonant return, in tours with a same-body manoeuvre
+/// leg long enough for it (ours; measured on the Messenger and Rosetta benchmarks, DEVELOPERS.md).
+const RESONANT_SHARE: f64 = 0.3;
+
+/// Fewest whole periods of the body a same-body leg's TOF bounds must reach for resonant moves
+/// (ours; measured, DEVELOPERS.md).
+const RESONANT_MIN_PERIODS: f64 = 3.0;
+
 /// Half-width of the region around the start the first island is seeded in, as a fraction of
 /// each variable's range (ours).
 const START_RADIUS: f64 = 0.05;
@@ -239,6 +249,99 @@ fn keep(slot: &mut Option<(Vec<f64>, f64)>, x: &[f64], v: f64) {
             *bv = v;
         }
         None => *slot = Some((x.to_vec(), v)),
+    }
+}
+
+/// A same-body leg with a manoeuvre that a resonant move can set up.
+#[derive(Clone, Copy, Debug)]
+struct ResonantLeg {
+    /// Leg index.
+    leg: usize,
+    /// Period of the body, days.
+    period: f64,
+    /// Index of the manoeuvre's fraction η.
+    eta: usize,
+    /// How the leg's start is searched.
+    start: DsmStartVars,
+}
+
+/// A leg start's two free numbers for a resonant move: their indices (a, b), the v∞ they give,
+/// the values of a to try and the scan of b.
+type StartNumbers = (
+    usize,
+    usize,
+    Box<dyn Fn(f64, f64) -> tourwright_astro::Vec3>,
+    Vec<f64>,
+    Box<dyn Fn(usize) -> f64>,
+);
+
+/// Same-body legs with a manoeuvre whose TOF bounds reach at least [`RESONANT_MIN_PERIODS`] of
+/// the body's periods: the legs a resonant move sets up (a launch or a shaped swing-by starts
+/// them). On shorter legs (one or two periods: Cassini2's Venus-Venus leg, Rosetta's
+/// Earth-Earth legs) the move was measured to hurt or not to help (DEVELOPERS.md).
+fn resonant_dsm_legs(p: &Problem) -> Vec<ResonantLeg> {
+    p.dsm_vars
+        .iter()
+        .filter_map(|v| {
+            let period = p.resonant_periods.get(v.leg).copied().flatten()?;
+            let (lo, hi) = (p.lo[v.leg + 1], p.hi[v.leg + 1]);
+            let most = (hi / period).floor();
+            (most >= RESONANT_MIN_PERIODS && most >= (lo / period).ceil().max(1.0)).then_some(
+                ResonantLeg {
+                    leg: v.leg,
+                    period,
+                    eta: v.eta,
+                    start: v.start,
+                },
+            )
+        })
+        .collect()
+}
+
+/// Points (a, b) of a leg start's two free numbers that put the spacecraft on a heliocentric
+/// orbit of period `period_days` (an n:m resonance with the body it leaves): along each of
+/// `a_values`, where the heliocentric speed `planet.v + vinf(a, b)` crosses the one vis-viva
+/// asks for at the body's distance, found by a scan of `b_at(0..=16)` and bisection.
+fn resonant_geometries(
+    planet: &tourwright_astro::State,
+    mu_sun: f64,
+    period_days: f64,
+    vinf: &dyn Fn(f64, f64) -> tourwright_astro::Vec3,
+    a_values: &[f64],
+    b_at: &dyn Fn(usize) -> f64,
+    out: &mut Vec<(f64, f64)>,
+) {
+    out.clear();
+    let r = planet.r.norm();
+    let a = (mu_sun * (period_days * 86_400.0 / std::f64::consts::TAU).powi(2)).cbrt();
+    let v2 = mu_sun * (2.0 / r - 1.0 / a);
+    if !(v2 > 0.0) {
+        return;
+    }
+    let target = v2.sqrt();
+    let miss = |x: f64, y: f64| (planet.v + vinf(x, y)).norm() - target;
+    let steps = 16;
+    for &x in a_values {
+        let mut prev = (b_at(0), miss(x, b_at(0)));
+        for i in 1..=steps {
+            let h = b_at(i);
+            let f = miss(x, h);
+            if prev.1.is_finite() && f.is_finite() && prev.1.signum() != f.signum() {
+                let (mut lo, mut hi, mut flo) = (prev.0, h, prev.1);
+                for _ in 0..30 {
+                    let mid = 0.5 * (lo + hi);
+                    let fm = miss(x, mid);
+                    if fm.signum() == flo.signum() {
+                        lo = mid;
+                        flo = fm;
+                    } else {
+                        hi = mid;
+                    }
+                }
+                out.push((x, 0.5 * (lo + hi)));
+            }
+            prev = (h, f);
+        }
     }
 }
 
@@ -534,6 +637,140 @@ impl Chain {
         self.trial[tj] = clamp_safe(self.x[tj] - d, p.lo[tj], p.hi[tj]);
     }
 
+    /// A resonant move (tours with manoeuvres): redraw a same-body leg as a return after m of
+    /// the body's periods on an orbit of n revolutions (an n:m resonance), the launch or the
+    /// swing-by before it turned so that the orbit has that period, and the manoeuvre late
+    /// enough that the coast covers all but part of the last revolution: a ballistic return the
+    /// descent can then trade against leveraging manoeuvres. Every later stop keeps its own
+    /// leg's time of flight. Starts from `self.trial`; one evaluation (the state the leg
+    /// starts from). False when no geometry was found.
+    fn resonant_move(&mut self, p: &Problem, leg: ResonantLeg, progress: &Progress) -> bool {
+        let (k, per) = (leg.leg, leg.period);
+        let t = k + 1;
+        let mmin = (p.lo[t] / per).ceil().max(1.0) as usize;
+        let mmax = (p.hi[t] / per).floor() as usize;
+        if mmax < mmin {
+            return false;
+        }
+        let m = mmin + self.rng.below(mmax - mmin + 1);
+        if let DsmStartVars::Launch { vinf, .. } = leg.start {
+            // A launch v∞ of any size inside its bounds.
+            self.trial[vinf] = p.lo[vinf] + self.rng.uniform() * (p.hi[vinf] - p.lo[vinf]);
+        }
+        let trial = std::mem::take(&mut self.trial);
+        let scored = self.worker.score(p, &trial, progress).is_some();
+        self.trial = trial;
+        if !scored {
+            return false;
+        }
+        let Some(stop) = self.worker.work.eval.stops.get(k) else {
+            return false;
+        };
+        let planet = stop.body_state;
+        let vin = stop.vinf_in;
+        let Some(tstop) = self.worker.work.tour.stops.get(k) else {
+            return false;
+        };
+        let body = tstop.body.data;
+        let phase = self.rng.uniform();
+        // The two numbers that set the start: (aim, altitude) after a swing-by, (u, w) at launch.
+        let (ia, ib, vinf_of, a_values, b_at): StartNumbers = match leg.start {
+            DsmStartVars::Swingby { altitude, aim } => {
+                if !(vin.norm() > 1e-6) || !vin.norm().is_finite() {
+                    return false;
+                }
+                let (lo, hi) = (p.lo[altitude], p.hi[altitude]);
+                let base = body.radius_km.max(1.0);
+                if !(hi > lo) || !(base + lo > 0.0) {
+                    return false;
+                }
+                let (l0, l1) = ((base + lo).ln(), (base + hi).ln());
+                (
+                    aim,
+                    altitude,
+                    Box::new(move |a, h| legs::shaped_vinf_out(&body, &vin, h, a)),
+                    (0..24)
+                        .map(|j| (360.0 * (phase + j as f64 / 24.0)).rem_euclid(360.0) - 180.0)
+                        .collect(),
+                    // Altitudes on a geometric scale: the turn changes fastest near the body.
+                    Box::new(move |i| {
+                        ((l0 + (l1 - l0) * i as f64 / 16.0).exp() - base).clamp(lo, hi)
+                    }),
+                )
+            }
+            DsmStartVars::Launch { vinf, u, w } => {
+                let speed = self.trial[vinf];
+                (
+                    u,
+                    w,
+                    Box::new(move |a, b| {
+                        let (rla, dla) = launch_angles(a, b);
+                        asymptote_vector(speed, rla, dla)
+                    }),
+                    (0..24).map(|j| (phase + j as f64 / 24.0).fract()).collect(),
+                    Box::new(|i| i as f64 / 16.0),
+                )
+            }
+        };
+        let mut found = Vec::new();
+        let mut choices: Vec<(usize, Vec<(f64, f64)>)> = Vec::new();
+        for n in 1..=(2 * m + 1) {
+            let period = m as f64 * per / n as f64;
+            resonant_geometries(
+                &planet,
+                p.tour.mu_sun,
+                period,
+                &*vinf_of,
+                &a_values,
+                &*b_at,
+                &mut found,
+            );
+            if !found.is_empty() {
+                choices.push((n, found.clone()));
+            }
+        }
+        if choices.is_empty() {
+            return false;
+        }
+        let (n, geo) = &choices[self.rng.below(choices.len())];
+        let (a, b) = geo[self.rng.below(geo.len())];
+        let p_sc = m as f64 * per / *n as f64;
+        let tof = m as f64 * per;
+        self.trial[t] = clamp_safe(tof, p.lo[t], p.hi[t]);
+        self.trial[ia] = clamp_safe(a, p.lo[ia], p.hi[ia]);
+        self.trial[ib] = clamp_safe(b, p.lo[ib], p.hi[ib]);
+        // The coast ends within the last revolution: the arc after the manoeuvre is the
+        // zero-revolution rest of the orbit.
+        let eta = leg.eta;
+        let eta_lo = (1.0 - 0.9 * p_sc / tof).max(p.lo[eta]);
+        let eta_hi = p.hi[eta];
+        self.trial[eta] = if eta_hi > eta_lo {
+            eta_lo + self.rng.uniform() * (eta_hi - eta_lo)
+        } else {
+            eta_hi
+        };
+        true
+    }
+
+    /// Redraw one leg of `self.x` into `self.trial`: a resonant move on a same-body leg now and
+    /// then (when the tour has one), else a leg move.
+    fn redraw_leg(
+        &mut self,
+        p: &Problem,
+        hs: &HopSettings,
+        resonant: &[ResonantLeg],
+        progress: &Progress,
+    ) {
+        if !resonant.is_empty() && self.rng.uniform() < RESONANT_SHARE {
+            self.trial.copy_from_slice(&self.x);
+            let leg = resonant[self.rng.below(resonant.len())];
+            if self.resonant_move(p, leg, progress) {
+                return;
+            }
+        }
+        self.leg_move(p, hs);
+    }
+
     /// One hop: perturb the chain's best, descend, keep the result if it is better; restart
     /// from a fresh point after too many failures.
     fn hop(
@@ -545,6 +782,11 @@ impl Chain {
         want_front: bool,
         progress: &Progress,
     ) {
+        let resonant = if p.dsm_vars.is_empty() {
+            Vec::new()
+        } else {
+            resonant_dsm_legs(p)
+        };
         let start = if let Some(x0) = self.first.take() {
             // The designer's own design, refined where it stands before anything else.
             self.fx = f64::INFINITY;
@@ -556,13 +798,13 @@ impl Chain {
                 // Manoeuvre tours: half the restarts leave from the best point of all chains
                 // with one leg redrawn, so effort gathers in the best funnel found so far.
                 self.x.copy_from_slice(incumbent);
-                self.leg_move(p, hs);
+                self.redraw_leg(p, hs, &resonant, progress);
                 self.trial.clone()
             } else {
                 self.fresh_start(p, pool)
             }
         } else if !p.dsm_vars.is_empty() && self.rng.uniform() < 0.5 {
-            self.leg_move(p, hs);
+            self.redraw_leg(p, hs, &resonant, progress);
             self.trial.clone()
         } else {
             for i in 0..p.dim() {
@@ -894,5 +1136,65 @@ fn report(p: &Problem, progress: &Progress, islands: &[Island], chains: &[Chain]
                 " (no point meets every limit yet)"
             }
         ));
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tourwright_astro::bodies::BodyData;
+    use tourwright_astro::{State, Vec3, kepler};
+
+    /// Every swing-by geometry the resonant move finds puts the spacecraft on an orbit that comes
+    /// back to the point it left after m of the body's periods (n of its own): checked by
+    /// two-body propagation, not by the vis-viva relation the search solves.
+    #[test]
+    fn resonant_geometries_return_to_the_body_after_m_periods() {
+        let mu_sun: f64 = 1.327_124_28e11;
+        // A Mercury-like body on a circular orbit (radius and μ of the benchmark model).
+        let r = 0.387_098_6 * 149_597_870.66;
+        let v = (mu_sun / r).sqrt();
+        let planet = State {
+            r: Vec3::new(r, 0.0, 0.0),
+            v: Vec3::new(0.0, v, 0.0),
+        };
+        let body = BodyData {
+            mu: 22_321.0,
+            radius_km: 2_440.0,
+            min_altitude_km: 0.0,
+            soi_km: 0.0,
+        };
+        let period = std::f64::consts::TAU * (r * r * r / mu_sun).sqrt() / 86_400.0;
+        // v∞ mostly radial: the turns a 5 km/s Mercury swing-by can make reach several periods.
+        let vin = Vec3::new(4.0, -2.5, 1.0);
+        let aims: Vec<f64> = (0..24).map(|j| -180.0 + 15.0 * j as f64).collect();
+        let (lo, hi) = (122.0_f64, 12_200.0_f64);
+        let base = body.radius_km;
+        let (l0, l1) = ((base + lo).ln(), (base + hi).ln());
+        let b_at = move |i: usize| ((l0 + (l1 - l0) * i as f64 / 16.0).exp() - base).clamp(lo, hi);
+        let vinf = move |a: f64, h: f64| legs::shaped_vinf_out(&body, &vin, h, a);
+        let mut found = Vec::new();
+        let mut checked = 0;
+        let pairs = (1..=5usize).flat_map(|m| (1..=2 * m + 1).map(move |n| (m, n)));
+        for (m, n) in pairs {
+            let p_sc = m as f64 * period / n as f64;
+            resonant_geometries(&planet, mu_sun, p_sc, &vinf, &aims, &b_at, &mut found);
+            for &(aim, alt) in &found {
+                assert!((lo..=hi).contains(&alt));
+                let s = State {
+                    r: planet.r,
+                    v: planet.v + vinf(aim, alt),
+                };
+                let back = kepler::propagate(&s, m as f64 * period * 86_400.0, mu_sun).unwrap();
+                // The circular body is back where it was after m periods too.
+                let miss = (back.r - planet.r).norm();
+                assert!(
+                    miss < 1.0,
+                    "{m}:{n} at aim {aim}, altitude {alt}: {miss} km"
+                );
+                checked += 1;
+            }
+        }
+        assert!(checked >= 5, "{checked}");
     }
 }
