@@ -90,6 +90,20 @@ fn assert_ledger_matches(h: &Harness<'_, TourwrightApp>, when: &str) {
     }
 }
 
+/// File › Export › `entry`, with `target` typed into the path prompt, then OK.
+fn export_through_prompt(h: &mut Harness<'static, TourwrightApp>, entry: &str, target: &Path) {
+    h.get_by_label("File").click();
+    h.run_steps(2);
+    h.get_by_label("Export").click();
+    h.run_steps(2);
+    h.get_by_label_contains(entry).click();
+    h.run_steps(2);
+    h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 = target.to_string_lossy().to_string();
+    h.run_steps(1);
+    h.get_by_label("OK").click();
+    h.run_steps(3);
+}
+
 fn menu(h: &mut Harness<'static, TourwrightApp>, top: &str, entry: &str) {
     h.get_by_label(top).click();
     h.run_steps(2);
@@ -233,18 +247,8 @@ fn every_file_edit_and_view_menu_entry_works() {
         ("Trajectory samples", "s.csv", "leg,piece,epoch_utc"),
         ("Trajectory (CCSDS OEM)", "t.oem", "CCSDS_OEM_VERS"),
     ] {
-        h.get_by_label("File").click();
-        h.run_steps(2);
-        h.get_by_label("Export").click();
-        h.run_steps(2);
-        h.get_by_label_contains(entry).click();
-        h.run_steps(2);
         let target = dir.path().join(file);
-        h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 =
-            target.to_string_lossy().to_string();
-        h.run_steps(1);
-        h.get_by_label("OK").click();
-        h.run_steps(3);
+        export_through_prompt(&mut h, entry, &target);
         let text = std::fs::read_to_string(&target).unwrap();
         assert!(text.starts_with(head), "{entry}: {}", &text[..40]);
     }
@@ -819,17 +823,7 @@ fn continuous_trajectory_runs_from_the_fidelity_tab_and_reaches_every_view() {
     // File › Export › the converged trajectory, through the typed-path prompt.
     let dir = tempfile::tempdir().unwrap();
     let target = dir.path().join("nbody.oem");
-    h.get_by_label("File").click();
-    h.run_steps(2);
-    h.get_by_label("Export").click();
-    h.run_steps(2);
-    h.get_by_label_contains("Continuous n-body trajectory")
-        .click();
-    h.run_steps(2);
-    h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 = target.to_string_lossy().to_string();
-    h.run_steps(1);
-    h.get_by_label("OK").click();
-    h.run_steps(3);
+    export_through_prompt(&mut h, "Continuous n-body trajectory", &target);
     let text = std::fs::read_to_string(&target).unwrap();
     assert!(text.starts_with("CCSDS_OEM_VERS"));
     assert_eq!(text.matches("META_START").count(), arcs);
@@ -1541,16 +1535,7 @@ fn launch_period_runs_from_its_tab_and_opens_a_day_as_one_undo_step() {
     // File › Export › the launch period's table, through the typed-path prompt.
     let dir = tempfile::tempdir().unwrap();
     let target = dir.path().join("period.csv");
-    h.get_by_label("File").click();
-    h.run_steps(2);
-    h.get_by_label("Export").click();
-    h.run_steps(2);
-    h.get_by_label_contains("Launch period (CSV)").click();
-    h.run_steps(2);
-    h.state_mut().dialogs.path_prompt.as_mut().unwrap().1 = target.to_string_lossy().to_string();
-    h.run_steps(1);
-    h.get_by_label("OK").click();
-    h.run_steps(3);
+    export_through_prompt(&mut h, "Launch period (CSV)", &target);
     let csv = std::fs::read_to_string(&target).unwrap();
     assert_eq!(csv.lines().count(), 1 + 5, "{csv}");
     let before = h.state().design().clone();

@@ -4,8 +4,9 @@
 
 use eframe::egui::{self, RichText};
 
-use super::action::{Action, Actions, JobKind, JobRequest};
+use super::action::{Actions, JobKind, JobRequest};
 use super::context::ViewCtx;
+use super::shared;
 
 /// The view's own state.
 #[derive(Default)]
@@ -28,7 +29,7 @@ impl FidelityView {
 
     /// The leg-by-leg check (each leg from its patched-conic departure state).
     fn check_ui(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
-        job_row(
+        shared::job_row(
             ui,
             vc,
             JobKind::Fidelity,
@@ -110,7 +111,7 @@ impl FidelityView {
 /// The continuous trajectory: run it, its verdict, its encounters and impulses.
 fn continuous_ui(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
     ui.label(RichText::new("Continuous n-body trajectory").strong());
-    job_row(
+    shared::job_row(
         ui,
         vc,
         JobKind::Continuous,
@@ -216,39 +217,4 @@ fn continuous_ui(ui: &mut egui::Ui, vc: &ViewCtx<'_>, out: &mut Actions) {
         )
         .weak(),
     );
-}
-
-/// A job's button (enabled when the design evaluates and no such job runs), its progress bar and
-/// its cancel button.
-#[allow(clippy::too_many_arguments)]
-fn job_row(
-    ui: &mut egui::Ui,
-    vc: &ViewCtx<'_>,
-    kind: JobKind,
-    request: JobRequest,
-    label: &str,
-    hover: &str,
-    out: &mut Actions,
-) {
-    let running = vc.jobs.progress_of(kind);
-    ui.horizontal_wrapped(|ui| {
-        let can = vc.tour.is_some() && vc.eval.complete && running.is_none();
-        if ui
-            .add_enabled(can, egui::Button::new(label))
-            .on_hover_text(hover)
-            .clicked()
-        {
-            out.push(Action::StartJob(request));
-        }
-        if let Some(p) = running {
-            ui.add(
-                egui::ProgressBar::new(p.fraction())
-                    .desired_width(160.0)
-                    .show_percentage(),
-            );
-            if ui.small_button("cancel").clicked() {
-                out.push(Action::CancelJobs(kind));
-            }
-        }
-    });
 }

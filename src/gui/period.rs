@@ -11,7 +11,7 @@ use tourwright_search::period::{PeriodDay, PeriodOptions, PeriodResult};
 
 use super::action::{Action, Actions, JobKind, JobRequest};
 use super::context::ViewCtx;
-use super::style;
+use super::{shared, style};
 
 /// The form (days, step, arrival held, budget) and the day under the pointer.
 #[derive(Default)]
@@ -88,29 +88,17 @@ impl PeriodView {
                     .range(1_000..=10_000_000)
                     .speed(1000.0),
             );
-            let running = vc.jobs.progress_of(JobKind::Period);
-            let can = vc.eval.complete && running.is_none();
-            if ui
-                .add_enabled(can, egui::Button::new("Compute launch period"))
-                .on_hover_text(
-                    "Search each day's tour with its launch held, starting from its neighbour's \
-                     (runs in the background)",
-                )
-                .clicked()
-            {
-                out.push(Action::StartJob(JobRequest::Period(*o)));
-            }
-            if let Some(p) = running {
-                ui.add(
-                    egui::ProgressBar::new(p.fraction())
-                        .desired_width(160.0)
-                        .show_percentage(),
-                );
-                if ui.small_button("cancel").clicked() {
-                    out.push(Action::CancelJobs(JobKind::Period));
-                }
-            }
         });
+        shared::job_row(
+            ui,
+            vc,
+            JobKind::Period,
+            JobRequest::Period(*o),
+            "Compute launch period",
+            "Search each day's tour with its launch held, starting from its neighbour's (runs in \
+             the background)",
+            out,
+        );
     }
 
     fn plots(&mut self, ui: &mut egui::Ui, vc: &ViewCtx<'_>, r: &PeriodResult, out: &mut Actions) {

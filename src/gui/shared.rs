@@ -1,12 +1,12 @@
-//! Pieces two views share: switching a swing-by to shaped from its current geometry, and the
-//! miss distance with the retarget buttons.
+//! Pieces several views share: switching a swing-by to shaped from its current geometry, the
+//! miss distance with the retarget buttons, and a background job's button, progress and cancel.
 
 use eframe::egui::{self, RichText};
 
 use tourwright_mission::design::SwingbyMode;
 use tourwright_mission::{Edit, rules};
 
-use super::action::{Action, Actions};
+use super::action::{Action, Actions, JobKind, JobRequest};
 use super::context::ViewCtx;
 use super::style;
 
@@ -59,6 +59,41 @@ pub fn retarget_row(ui: &mut egui::Ui, vc: &ViewCtx<'_>, k: usize, out: &mut Act
                     stop: k,
                     move_epoch,
                 });
+            }
+        }
+    });
+}
+
+/// A job's button (enabled when the design evaluates and no such job runs), its progress bar and
+/// its cancel button.
+#[allow(clippy::too_many_arguments)]
+pub fn job_row(
+    ui: &mut egui::Ui,
+    vc: &ViewCtx<'_>,
+    kind: JobKind,
+    request: JobRequest,
+    label: &str,
+    hover: &str,
+    out: &mut Actions,
+) {
+    let running = vc.jobs.progress_of(kind);
+    ui.horizontal_wrapped(|ui| {
+        let can = vc.tour.is_some() && vc.eval.complete && running.is_none();
+        if ui
+            .add_enabled(can, egui::Button::new(label))
+            .on_hover_text(hover)
+            .clicked()
+        {
+            out.push(Action::StartJob(request));
+        }
+        if let Some(p) = running {
+            ui.add(
+                egui::ProgressBar::new(p.fraction())
+                    .desired_width(160.0)
+                    .show_percentage(),
+            );
+            if ui.small_button("cancel").clicked() {
+                out.push(Action::CancelJobs(kind));
             }
         }
     });
