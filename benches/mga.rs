@@ -5,7 +5,8 @@
 //!
 //! `TOURWRIGHT_MGA_SEEDS=N` runs fewer seeds; `TOURWRIGHT_MGA_ONLY=cassini1` runs one problem
 //! (its file name without `.tour.ron`; several with commas); `TOURWRIGHT_MGA_EVALS=N` runs one budget of N evaluations in the
-//! benchmark model only (for spot checks); `TOURWRIGHT_MGA_VERBOSE=1` prints every seed's value.
+//! benchmark model only (for spot checks); `TOURWRIGHT_MGA_FIRST_SEED=K` starts at seed K;
+//! `TOURWRIGHT_MGA_VERBOSE=1` prints every seed's value and time.
 
 use std::path::Path;
 use std::time::Instant;
@@ -75,6 +76,10 @@ fn main() {
         .ok()
         .and_then(|s| s.parse().ok());
     let verbose = std::env::var("TOURWRIGHT_MGA_VERBOSE").is_ok();
+    let first_seed: u64 = std::env::var("TOURWRIGHT_MGA_FIRST_SEED")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(1);
     println!(
         "| problem | ephemeris | evaluations | seeds | best (km/s) | median | worst | feasible | mean time (s) | published best (km/s) |"
     );
@@ -103,7 +108,8 @@ fn main() {
                 let mut vals = Vec::new();
                 let mut feasible = 0;
                 let t = Instant::now();
-                for seed in 1..=seeds {
+                for seed in first_seed..first_seed + seeds {
+                    let run = Instant::now();
                     let r = optimize(
                         &p,
                         &OptimizeOptions {
@@ -118,7 +124,12 @@ fn main() {
                         feasible += 1;
                     }
                     if verbose {
-                        eprintln!("{} seed {seed}: {:.4}", bench.file, r.value);
+                        eprintln!(
+                            "{} seed {seed}: {:.4} ({:.1} s)",
+                            bench.file,
+                            r.value,
+                            run.elapsed().as_secs_f64()
+                        );
                     }
                     vals.push(r.value);
                 }
