@@ -21,7 +21,7 @@ use rayon::prelude::*;
 use super::problem::{DsmStartVars, Problem, Workspace, launch_angles};
 use super::rng::Rng;
 use crate::job::Progress;
-use crate::polish::{LocalOptions, auglag_box, clamp_safe, lm_sum_of_norms};
+use crate::polish::{LocalOptions, NormBlocks, auglag_box, clamp_safe, lm_sum_of_norms};
 use tourwright_mission::Schedule;
 use tourwright_mission::evaluate::legs;
 use tourwright_mission::launch::asymptote_vector;
@@ -236,6 +236,20 @@ const RESONANT_SHARE: f64 = 0.3;
 /// Fewest whole periods of the body a same-body leg's TOF bounds must reach for resonant moves
 /// (ours; measured, DEVELOPERS.md).
 const RESONANT_MIN_PERIODS: f64 = 3.0;
+
+/// Draws per leg when a chain of returns is built leg by leg, and the evaluations its compass
+/// refinement may spend (ours).
+const GROW_DRAWS: usize = 40;
+
+const GROW_POLISH: usize = 120;
+
+/// Share of the restarts that build a chain of returns leg by leg, in tours with two or more
+/// resonant legs (ours; measured on Messenger full, DEVELOPERS.md).
+const GROW_SHARE: f64 = 0.5;
+
+/// Share of those builds that keep the best tour's legs before the returns; the others descend
+/// the legs before the returns of a fresh start first (ours).
+const GROW_FROM_BEST: f64 = 0.5;
 
 /// Half-width of the region around the start the first island is seeded in, as a fraction of
 /// each variable's range (ours).
@@ -752,6 +766,231 @@ impl Chain {
         true
     }
 
+    /// What the tour leaves to do after leg `k` of the point last scored: leg k's manoeuvre plus
+    /// the cost of the v∞ it brings to the next stop (the design's arrival Δv there when that
+    /// body is the last one, else the v∞ itself). The sequential build of a chain of returns
+    /// ranks leg k's choices by it; later legs do not enter.
+    fn after_leg(&self, p: &Problem, k: usize) -> f64 {
+        let e = &self.worker.work.eval;
+        let (Some(leg), Some(next)) = (e.legs.get(k), e.stops.get(k + 1)) else {
+            return f64::INFINITY;
+        };
+        if !leg.solved {
+            return f64::INFINITY;
+        }
+        let dsm = leg.dsm.map_or(0.0, |d| d.dv_km_s);
+        let v = next.vinf_in.norm();
+        let tour = &self.worker.work.tour;
+        let last = tour.stops.len() - 1;
+        let to_go = if tour.stops[k + 1].body.id == tour.stops[last].body.id {
+            tourwright_mission::arrival::arrival_dv(
+                &p.tour.arrival,
+                v,
+                tour.stops[k + 1].body.data.mu,
+            )
+        } else {
+            v
+        };
+        let c = dsm + to_go;
+        if c.is_finite() { c } else { f64::INFINITY }
+    }
+
+    /// A descent of the legs before a chain of returns (legs `0..first`), scored by what they
+    /// cost and what they leave: the launch v∞ (when counted), their swing-bys' and manoeuvres'
+    /// Δv, the cost of the v∞ they bring to stop `first` ([`Chain::after_leg`]'s measure) and
+    /// every limit's violation. The other variables stay put. `None` when the allowance ran out.
+    fn descend_prefix(
+        &mut self,
+        p: &Problem,
+        x0: &[f64],
+        first: usize,
+        max_evals: usize,
+        progress: &Progress,
+    ) -> Option<Vec<f64>> {
+        if first == 0 {
+            // The returns start at launch: nothing comes before them.
+            return Some(x0.to_vec());
+        }
+        let layout = p.norm_layout()?;
+        let full_len: usize = layout.iter().map(|b| b.0).sum();
+        // The legs' own blocks, the cost of what they leave at stop `first`, then the
+        // constraints: the first and last copied from the full residual.
+        let (mut own, mut limits) = (Vec::new(), Vec::new());
+        let mut at = 0;
+        for (b, o) in &layout {
+            match o {
+                Some(k) if *k < first => own.push(at..at + b),
+                Some(_) => {}
+                None => limits.push(at..at + b),
+            }
+            at += b;
+        }
+        let blocks: Vec<usize> = own
+            .iter()
+            .map(|r| r.len())
+            .chain(std::iter::once(1))
+            .chain(limits.iter().map(|r| r.len()))
+            .collect();
+        let shape = NormBlocks { blocks };
+        let mut fixed = vec![true; p.dim()];
+        fixed[0] = false;
+        for f in fixed.iter_mut().take(first + 1).skip(1) {
+            *f = false;
+        }
+        for v in p.dsm_vars.iter().filter(|v| v.leg < first) {
+            fixed[v.eta] = false;
+            match v.start {
+                DsmStartVars::Launch { vinf, u, w } => {
+                    fixed[vinf] = false;
+                    fixed[u] = false;
+                    fixed[w] = false;
+                }
+                DsmStartVars::Swingby { altitude, aim } => {
+                    fixed[altitude] = false;
+                    fixed[aim] = false;
+                }
+            }
+        }
+        for (i, f) in fixed.iter_mut().enumerate() {
+            *f |= p.integer[i];
+        }
+        let mut buf = vec![0.0; full_len];
+        let mut out_of_evals = false;
+        let (x, _, _) = {
+            let mut rf = |x: &[f64], r: &mut [f64]| {
+                if !self.worker.residuals(p, x, &mut buf, progress) {
+                    out_of_evals |= !self.worker.can(progress);
+                    return false;
+                }
+                let cost = self.after_leg(p, first - 1)
+                    - self.worker.work.eval.legs[first - 1]
+                        .dsm
+                        .map_or(0.0, |d| d.dv_km_s);
+                let mut j = 0;
+                for rg in &own {
+                    r[j..j + rg.len()].copy_from_slice(&buf[rg.clone()]);
+                    j += rg.len();
+                }
+                r[j] = if cost.is_finite() { cost } else { 1e6 };
+                j += 1;
+                for rg in &limits {
+                    r[j..j + rg.len()].copy_from_slice(&buf[rg.clone()]);
+                    j += rg.len();
+                }
+                true
+            };
+            lm_sum_of_norms(
+                &mut rf,
+                &shape,
+                x0,
+                &p.lo,
+                &p.hi,
+                &fixed,
+                &LocalOptions {
+                    max_evals,
+                    fd_step: 1e-7,
+                    f_tol: 1e-10,
+                },
+            )
+        };
+        if out_of_evals {
+            return None;
+        }
+        Some(x)
+    }
+
+    /// Build a chain of returns leg by leg (tours with two or more resonant legs): from
+    /// `self.x`, each resonant leg in turn is redrawn [`GROW_DRAWS`] times as a return near a
+    /// resonance (the resonant move, its time of flight then moved by up to a few tenths of the
+    /// body's period so that the manoeuvre can leverage), the draw that leaves the least to do
+    /// ([`Chain::after_leg`]) is refined by a compass search on that leg's four numbers, and the
+    /// next leg starts from it. The result is in `self.trial`; false when the allowance ran out
+    /// or no leg could be drawn.
+    fn grow_returns(&mut self, p: &Problem, resonant: &[ResonantLeg], progress: &Progress) -> bool {
+        let mut base = self.x.clone();
+        let mut grown = false;
+        for &leg in resonant {
+            let k = leg.leg;
+            let t = k + 1;
+            let (ia, ib) = match leg.start {
+                DsmStartVars::Swingby { altitude, aim } => (aim, altitude),
+                DsmStartVars::Launch { u, w, .. } => (u, w),
+            };
+            // The leg as it stands is the first candidate: a build never trades it for worse.
+            let Some(_) = self.worker.score(p, &base, progress) else {
+                return false;
+            };
+            let mut best: Option<(Vec<f64>, f64)> = Some((base.clone(), self.after_leg(p, k)));
+            for _ in 0..GROW_DRAWS {
+                self.trial.copy_from_slice(&base);
+                if !self.resonant_move(p, leg, progress) {
+                    if !self.worker.can(progress) {
+                        return false;
+                    }
+                    continue;
+                }
+                let shift = (-0.1 + 0.4 * self.rng.uniform()) * leg.period;
+                self.trial[t] = clamp_safe(self.trial[t] + shift, p.lo[t], p.hi[t]);
+                let trial = std::mem::take(&mut self.trial);
+                let scored = self.worker.score(p, &trial, progress).is_some();
+                self.trial = trial;
+                if !scored {
+                    return false;
+                }
+                let c = self.after_leg(p, k);
+                if best.as_ref().is_none_or(|b| c < b.1) {
+                    best = Some((self.trial.clone(), c));
+                }
+            }
+            let Some((mut x, mut c)) = best else { continue };
+            // Compass search on the leg's time of flight, manoeuvre fraction and start.
+            let vars = [t, leg.eta, ia, ib];
+            let mut step: Vec<f64> = vars.iter().map(|&i| 0.05 * (p.hi[i] - p.lo[i])).collect();
+            step[0] = 0.05 * leg.period;
+            let mut spent = 0;
+            while spent < GROW_POLISH
+                && step
+                    .iter()
+                    .zip(&vars)
+                    .any(|(s, &i)| *s > 1e-4 * (p.hi[i] - p.lo[i]))
+            {
+                let mut moved = false;
+                for j in 0..vars.len() {
+                    for sign in [1.0, -1.0] {
+                        let i = vars[j];
+                        let v = clamp_safe(x[i] + sign * step[j], p.lo[i], p.hi[i]);
+                        if v == x[i] {
+                            continue;
+                        }
+                        self.trial.copy_from_slice(&x);
+                        self.trial[i] = v;
+                        let trial = std::mem::take(&mut self.trial);
+                        let scored = self.worker.score(p, &trial, progress).is_some();
+                        self.trial = trial;
+                        if !scored {
+                            return false;
+                        }
+                        spent += 1;
+                        let ct = self.after_leg(p, k);
+                        if ct < c {
+                            c = ct;
+                            x.copy_from_slice(&self.trial);
+                            moved = true;
+                            break;
+                        }
+                    }
+                }
+                if !moved {
+                    step.iter_mut().for_each(|s| *s *= 0.5);
+                }
+            }
+            base = x;
+            grown = true;
+        }
+        self.trial.copy_from_slice(&base);
+        grown
+    }
+
     /// Redraw one leg of `self.x` into `self.trial`: a resonant move on a same-body leg now and
     /// then (when the tour has one), else a leg move.
     fn redraw_leg(
@@ -794,7 +1033,33 @@ impl Chain {
         } else if self.fails >= hs.fails_before_restart || !self.fx.is_finite() {
             self.fails = 0;
             self.fx = f64::INFINITY;
-            if !p.dsm_vars.is_empty() && incumbent.len() == p.dim() && self.rng.uniform() < 0.5 {
+            if resonant.len() >= 2 && self.rng.uniform() < GROW_SHARE {
+                // A chain of returns built leg by leg, after the legs before it: the best
+                // tour's, or a fresh start's descended first. The build takes this hop's
+                // allowance; the next hop descends the whole tour from it.
+                if incumbent.len() == p.dim() && self.rng.uniform() < GROW_FROM_BEST {
+                    self.x.copy_from_slice(incumbent);
+                } else {
+                    let x0 = self.fresh_start(p, pool);
+                    let build = resonant.len() * (2 * GROW_DRAWS + GROW_POLISH) + 16;
+                    let evals = (self.worker.allowance as usize)
+                        .saturating_sub(build)
+                        .min(hs.local_evals_norms);
+                    self.x = self
+                        .descend_prefix(p, &x0, resonant[0].leg, evals, progress)
+                        .unwrap_or(x0);
+                }
+                let built = if self.grow_returns(p, &resonant, progress) {
+                    self.trial.clone()
+                } else {
+                    self.x.clone()
+                };
+                self.first = Some(built);
+                return;
+            } else if !p.dsm_vars.is_empty()
+                && incumbent.len() == p.dim()
+                && self.rng.uniform() < 0.5
+            {
                 // Manoeuvre tours: half the restarts leave from the best point of all chains
                 // with one leg redrawn, so effort gathers in the best funnel found so far.
                 self.x.copy_from_slice(incumbent);
@@ -1196,5 +1461,88 @@ mod tests {
             }
         }
         assert!(checked >= 5, "{checked}");
+    }
+
+    fn messenger_full() -> Problem {
+        let file = std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("../../benches/mga/messenger_full.tour.ron");
+        let d = tourwright_mission::files::load(&file).unwrap();
+        Problem::from_design(&d).unwrap()
+    }
+
+    fn chain(p: &Problem, seed: u64) -> Chain {
+        let mut worker = Worker::new(p);
+        worker.allowance = 1_000_000;
+        Chain {
+            rng: Rng::new(seed),
+            x: p.start(),
+            fx: f64::INFINITY,
+            best: (p.start(), f64::INFINITY),
+            fails: 0,
+            trial: vec![0.0; p.dim()],
+            worker,
+            first: None,
+        }
+    }
+
+    /// Σ manoeuvres of legs 0..first plus what leg first − 1 leaves at stop `first`.
+    fn prefix_cost(c: &mut Chain, p: &Problem, x: &[f64], first: usize) -> f64 {
+        c.worker.score(p, x, &Progress::new()).unwrap();
+        let e = &c.worker.work.eval;
+        let dsms: f64 = e.legs[..first - 1]
+            .iter()
+            .map(|l| l.dsm.map_or(0.0, |d| d.dv_km_s))
+            .sum();
+        dsms + c.after_leg(p, first - 1)
+    }
+
+    /// Messenger full's three Mercury-Mercury legs form a chain of returns; the descent of the
+    /// legs before them lowers their cost and what they leave at the first Mercury encounter,
+    /// and moves none of the returns' variables.
+    #[test]
+    fn the_legs_before_a_chain_of_returns_descend_alone() {
+        let p = messenger_full();
+        let resonant = resonant_dsm_legs(&p);
+        let legs: Vec<usize> = resonant.iter().map(|l| l.leg).collect();
+        assert_eq!(legs, [3, 4, 5]);
+        let progress = Progress::new();
+        for seed in 1..=3 {
+            let mut c = chain(&p, seed);
+            let x0 = c.fresh_start(&p, &[]);
+            let before = prefix_cost(&mut c, &p, &x0, 3);
+            let x = c.descend_prefix(&p, &x0, 3, 1500, &progress).unwrap();
+            let after = prefix_cost(&mut c, &p, &x, 3);
+            assert!(after < before, "seed {seed}: {after} vs {before}");
+            let mut returns: Vec<usize> = (4..=6).collect();
+            for k in 3..6 {
+                returns.extend(p.leg_vars(k));
+            }
+            for i in returns {
+                assert_eq!(x[i].to_bits(), x0[i].to_bits(), "seed {seed}: x[{i}] moved");
+            }
+        }
+    }
+
+    /// The returns built leg by leg from a tour whose Mercury legs are drawn at random cost less
+    /// than that tour (each leg keeps its own draw unless one leaves less to do: never worse,
+    /// and here much better), and lie inside their bounds.
+    #[test]
+    fn a_chain_of_returns_built_leg_by_leg_beats_the_tour_it_starts_from() {
+        let p = messenger_full();
+        let resonant = resonant_dsm_legs(&p);
+        let progress = Progress::new();
+        for seed in 1..=3 {
+            let mut c = chain(&p, seed);
+            let x0 = c.fresh_start(&p, &[]);
+            c.x = c.descend_prefix(&p, &x0, 3, 1500, &progress).unwrap();
+            let start = c.worker.score(&p, &c.x.clone(), &progress).unwrap();
+            assert!(c.grow_returns(&p, &resonant, &progress));
+            let built = c.trial.clone();
+            let v = c.worker.score(&p, &built, &progress).unwrap();
+            assert!(v < start, "seed {seed}: {v} vs {start}");
+            for (i, x) in built.iter().enumerate() {
+                assert!(p.lo[i] <= *x && *x <= p.hi[i], "x[{i}] = {x}");
+            }
+        }
     }
 }

@@ -732,6 +732,16 @@ impl Problem {
     /// arrival Δv or v∞ vector, each constraint's weighted violation), when it is one: the Δv
     /// objectives are; mass, C3 and time are not. Block lengths in [`Problem::residuals`] order.
     pub fn norm_shape(&self) -> Option<NormBlocks> {
+        let layout = self.norm_layout()?;
+        Some(NormBlocks {
+            blocks: layout.iter().map(|b| b.0).collect(),
+        })
+    }
+
+    /// [`Problem::norm_shape`]'s blocks with what each belongs to: (length, stop or leg index),
+    /// the index `None` for constraints. The launch v∞ belongs to 0, the swing-by at stop k to
+    /// k, leg k's manoeuvre to k, the arrival to the last stop's index.
+    pub fn norm_layout(&self) -> Option<Vec<(usize, Option<usize>)>> {
         if !matches!(
             self.objective,
             Objective::TotalDvWithLaunchVinf | Objective::SpacecraftDv
@@ -741,23 +751,23 @@ impl Problem {
         let n = self.tour.stops.len();
         let mut blocks = Vec::new();
         if self.objective == Objective::TotalDvWithLaunchVinf {
-            blocks.push(1);
+            blocks.push((1, Some(0)));
         }
         for k in 0..n - 1 {
             if k > 0 {
-                blocks.push(1);
+                blocks.push((1, Some(k)));
             }
             if self.tour.legs[k].dsm.is_some() || self.dsm_vars.iter().any(|v| v.leg == k) {
-                blocks.push(3);
+                blocks.push((3, Some(k)));
             }
         }
         match self.tour.arrival {
-            ArrivalGoal::Rendezvous => blocks.push(3),
-            ArrivalGoal::Capture { .. } => blocks.push(1),
+            ArrivalGoal::Rendezvous => blocks.push((3, Some(n - 1))),
+            ArrivalGoal::Capture { .. } => blocks.push((1, Some(n - 1))),
             ArrivalGoal::FlybyOnly => {}
         }
-        blocks.extend(std::iter::repeat_n(1, self.constraints.len()));
-        Some(NormBlocks { blocks })
+        blocks.extend(std::iter::repeat_n((1, None), self.constraints.len()));
+        Some(blocks)
     }
 
     /// The residual vector of [`Problem::norm_shape`] at `x`, whose norms sum to the score. False
