@@ -595,7 +595,7 @@ fn messenger_reduced_published_vector_evaluates_to_the_published_value() {
     let mut work = Workspace::new(&p);
     let v = p.score(&x, &mut work);
     // "The objective function is considered to the precision of meters per second" (same page);
-    // the vector is printed to six figures.
+    // the vector is printed to six figures. Our evaluation: 8.7026 km/s.
     assert!((v - 8.703).abs() < 2e-3, "{v}");
     assert!(p.feasible(&x, &mut work));
     // Our optimiser's runs at 6 M evaluations reach below it (README table); the point lies
