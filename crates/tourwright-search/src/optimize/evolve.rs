@@ -237,10 +237,10 @@ const RESONANT_SHARE: f64 = 0.3;
 /// (ours; measured, DEVELOPERS.md).
 const RESONANT_MIN_PERIODS: f64 = 3.0;
 
-/// Draws per leg when a chain of returns is built leg by leg, and the evaluations its compass
-/// refinement may spend (ours).
+/// Resonant draws per leg when a chain of returns is built leg by leg (ours).
 const GROW_DRAWS: usize = 40;
 
+/// Evaluations the compass refinement of each built leg may spend (ours).
 const GROW_POLISH: usize = 120;
 
 /// Share of the restarts that build a chain of returns leg by leg, in tours with two or more
@@ -902,9 +902,9 @@ impl Chain {
     /// Build a chain of returns leg by leg (tours with two or more resonant legs): from
     /// `self.x`, each resonant leg in turn is redrawn [`GROW_DRAWS`] times as a return near a
     /// resonance (the resonant move, its time of flight then moved by up to a few tenths of the
-    /// body's period so that the manoeuvre can leverage), the draw that leaves the least to do
-    /// ([`Chain::after_leg`]) is refined by a compass search on that leg's four numbers, and the
-    /// next leg starts from it. The result is in `self.trial`; false when the allowance ran out
+    /// body's period so that the manoeuvre can leverage); of those draws and the leg as it
+    /// stands, the one that leaves the least to do ([`Chain::after_leg`]) is refined by a compass
+    /// search on that leg's four numbers, and the next leg starts from it. The result is in `self.trial`; false when the allowance ran out
     /// or no leg could be drawn.
     fn grow_returns(&mut self, p: &Problem, resonant: &[ResonantLeg], progress: &Progress) -> bool {
         let mut base = self.x.clone();
