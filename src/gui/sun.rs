@@ -501,8 +501,9 @@ impl Frame {
 /// A manoeuvre marker is grabbed within this many points of its centre.
 const DSM_GRAB: f32 = 14.0;
 
-/// Text labels placed so that they do not overlap: each tries the four corners around its point
-/// and takes the first one inside the canvas and free, else the first inside, else the first.
+/// Text labels placed so that they do not overlap: each tries the four corners around its point,
+/// then the same corners stacked outwards line by line, and takes the first one inside the canvas
+/// and free, else the first corner inside, else the first.
 struct Labels {
     bounds: egui::Rect,
     placed: Vec<egui::Rect>,
@@ -536,11 +537,22 @@ impl Labels {
         let inside = |r: &egui::Rect| self.bounds.contains_rect(*r);
         let free = |r: &egui::Rect| !self.placed.iter().any(|q| q.intersects(*r));
         let rects = corners.map(rect_at);
+        // Several stops at one place (a chain of resonant returns meets the body where it left
+        // it): when the four corners are taken, the labels stack outwards above and below.
+        let line = sz.y + 1.0;
+        let stacked = (1..=6).flat_map(|k| {
+            let dy = k as f32 * line;
+            corners.map(|(off, align)| {
+                let off = vec2(off.x, off.y + if off.y > 0.0 { dy } else { -dy });
+                rect_at((off, align))
+            })
+        });
         let pick = rects
             .iter()
-            .find(|r| inside(r) && free(r))
-            .or_else(|| rects.iter().find(|r| inside(r)))
             .copied()
+            .chain(stacked)
+            .find(|r| inside(r) && free(r))
+            .or_else(|| rects.iter().copied().find(|r| inside(r)))
             .unwrap_or(rects[0]);
         painter.galley(pick.min, galley, color);
         self.placed.push(pick);
@@ -712,5 +724,47 @@ fn outline_of(dark: bool) -> Color32 {
         Color32::from_gray(20)
     } else {
         Color32::WHITE
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Four stops at one place (Messenger full's Mercury returns meet Mercury where it left it)
+    /// and the body's own label: every label is drawn, none overlaps another or the symbol, all
+    /// inside the canvas.
+    #[test]
+    fn labels_of_stops_at_one_place_stack_apart() {
+        let ctx = egui::Context::default();
+        let _ = ctx.run_pass(egui::RawInput::default(), |ctx| {
+            let painter = ctx.layer_painter(egui::LayerId::background());
+            let bounds = egui::Rect::from_min_size(egui::pos2(0.0, 0.0), vec2(600.0, 400.0));
+            let mut labels = Labels {
+                bounds,
+                placed: Vec::new(),
+            };
+            let at = egui::pos2(300.0, 200.0);
+            labels.block(at, 6.0);
+            let texts = [
+                "Mercury",
+                "Mercury 2007-08-31",
+                "Mercury 2008-02-23",
+                "Mercury 2008-11-13",
+                "Mercury 2009-10-31",
+                "Mercury 2011-01-12",
+            ];
+            for t in texts {
+                labels.place(&painter, at, 9.0, t.to_string(), 11.0, Color32::WHITE);
+            }
+            let placed = &labels.placed;
+            assert_eq!(placed.len(), texts.len() + 1);
+            for (i, a) in placed.iter().enumerate() {
+                assert!(bounds.contains_rect(*a), "{a:?}");
+                for b in &placed[i + 1..] {
+                    assert!(!a.intersects(*b), "{a:?} overlaps {b:?}");
+                }
+            }
+        });
     }
 }
