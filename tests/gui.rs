@@ -1132,6 +1132,49 @@ fn the_search_panel_shows_and_edits_the_search_bounds() {
     assert_eq!(h.state().design().search.leg_tof[0], before);
 }
 
+/// The Search panel's objective is the design's own (`search.objective`, what `tourwright
+/// optimize` uses by default): it shows the file's choice, a change is an edit of the design
+/// that undo takes back, and the optimiser runs on it.
+#[test]
+fn the_search_objective_is_the_designs_and_an_undoable_edit() {
+    let mut h = harness(0);
+    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+    let from_file = h.state().design().search.objective;
+    let shown = |h: &Harness<'static, TourwrightApp>| {
+        let n = h.get_by_role_and_label(Role::ComboBox, "objective");
+        n.value().unwrap_or_default().to_string()
+    };
+    let o = from_file;
+    assert_eq!(shown(&h), format!("{} ({})", o.label(), o.unit()));
+    h.get_by_role_and_label(Role::ComboBox, "objective").click();
+    h.run_steps(2);
+    h.get_by_label("spacecraft Δv (km/s)").click();
+    h.run_steps(3);
+    assert_eq!(
+        h.state().design().search.objective,
+        tourwright::mission::Objective::SpacecraftDv
+    );
+    assert_eq!(shown(&h), "spacecraft Δv (km/s)");
+    h.get_by_label("Optimise dates").click();
+    h.run_steps(1);
+    wait_for_jobs(&mut h);
+    let o = h
+        .state()
+        .jobs
+        .optimum
+        .clone()
+        .expect("an optimiser result")
+        .value;
+    assert_eq!(
+        o.result.objective,
+        tourwright::mission::Objective::SpacecraftDv
+    );
+    menu(&mut h, "Edit", "Undo");
+    assert_eq!(h.state().design().search.objective, from_file);
+}
+
 #[test]
 fn explorer_rows_show_their_objective_and_the_limits_they_break() {
     let mut h = harness(0);

@@ -28,8 +28,6 @@ pub enum Preview {
 
 /// Search settings (results live with the jobs).
 pub struct SearchPanel {
-    /// Optimiser objective.
-    pub objective: Objective,
     /// Optimiser budget.
     pub evals: u64,
     /// Seed.
@@ -61,7 +59,6 @@ pub struct SearchPanel {
 impl Default for SearchPanel {
     fn default() -> Self {
         SearchPanel {
-            objective: Objective::TotalDvWithLaunchVinf,
             evals: optimize::DEFAULT_EVALS,
             seed: 1,
             target: Planet::Jupiter,
@@ -96,7 +93,8 @@ pub fn preview(o: &SearchOutcome, d: &MissionDesign) -> Preview {
 impl SearchPanel {
     /// The action that starts the optimiser with the panel's settings, or the reason it cannot.
     pub fn optimizer_request(&self, vc: &ViewCtx<'_>) -> Result<Action, String> {
-        if self.objective.needs_vehicle() && vc.design.launch_vehicle.is_none() {
+        let objective = vc.design.search.objective;
+        if objective.needs_vehicle() && vc.design.launch_vehicle.is_none() {
             return Err("delivered mass needs a launch-vehicle table".into());
         }
         Ok(Action::StartJob(JobRequest::Optimize(
@@ -105,7 +103,7 @@ impl SearchPanel {
                 max_evals: self.evals,
                 ..Default::default()
             },
-            self.objective,
+            objective,
         )))
     }
 
@@ -129,24 +127,23 @@ impl SearchPanel {
             )
             .weak(),
         );
+        // The design's own objective (`search.objective`, what `tourwright optimize` uses by
+        // default): a change is an edit of the design, undone like any other.
         let lab = ui.label("objective");
+        let current = vc.design.search.objective;
+        let mut chosen = current;
         egui::ComboBox::from_id_salt("objective")
-            .selected_text(format!(
-                "{} ({})",
-                self.objective.label(),
-                self.objective.unit()
-            ))
+            .selected_text(format!("{} ({})", current.label(), current.unit()))
             .show_ui(ui, |ui| {
                 for o in Objective::ALL {
-                    ui.selectable_value(
-                        &mut self.objective,
-                        o,
-                        format!("{} ({})", o.label(), o.unit()),
-                    );
+                    ui.selectable_value(&mut chosen, o, format!("{} ({})", o.label(), o.unit()));
                 }
             })
             .response
             .labelled_by(lab.id);
+        if chosen != current {
+            out.push(Action::Edit(Edit::SetObjective(chosen)));
+        }
         ui.horizontal(|ui| {
             style::labelled(
                 ui,
@@ -557,7 +554,7 @@ impl SearchPanel {
                             via: self.via.clone(),
                             max_swingbys: self.max_swingbys,
                             max_tof_years: self.max_tof_years,
-                            objective: self.objective,
+                            objective: vc.design.search.objective,
                             evals_per_sequence: self.evals_per_sequence,
                             seed: self.seed,
                             shard: None,
