@@ -64,6 +64,52 @@ fn samples_open_evaluate_and_save_unchanged() {
     }
 }
 
+/// An evaluation buffer reused across tours (the search's hot path keeps the bodies' states of
+/// the last evaluation) says exactly what a fresh one says: after another design, after an epoch
+/// moved by one ulp, after a body changed at the same stop.
+#[test]
+fn a_reused_evaluation_buffer_says_what_a_fresh_one_says() {
+    use tourwright_mission::evaluate::{EvalOptions, evaluate as eval_into};
+    let tours: Vec<PreparedTour> = samples()
+        .iter()
+        .map(|p| tour(&files::load(p).unwrap()))
+        .collect();
+    let fresh = |t: &PreparedTour| {
+        let mut e = Evaluation::default();
+        eval_into(t, &EvalOptions::default(), &mut e);
+        e
+    };
+    let mut buf = Evaluation::default();
+    let mut checked = 0;
+    for a in &tours {
+        for b in &tours {
+            eval_into(a, &EvalOptions::default(), &mut buf);
+            eval_into(b, &EvalOptions::default(), &mut buf);
+            assert_eq!(buf, fresh(b), "{} after {}", b.name, a.name);
+            // One stop's epoch moved by the smallest step a double allows.
+            let mut moved = b.clone();
+            let k = moved.stops.len() - 1;
+            moved.stops[k].t.0 = f64::from_bits(moved.stops[k].t.0.to_bits() + 1);
+            eval_into(&moved, &EvalOptions::default(), &mut buf);
+            let f = fresh(&moved);
+            assert_eq!(buf, f, "{}: epoch moved", b.name);
+            assert_eq!(
+                buf.stops[k].body_state, f.stops[k].body_state,
+                "{}: epoch moved",
+                b.name
+            );
+            // Another body at the last stop, same epoch.
+            let mut other = b.clone();
+            other.stops[k].body = a.stops[a.stops.len() - 1].body.clone();
+            eval_into(b, &EvalOptions::default(), &mut buf);
+            eval_into(&other, &EvalOptions::default(), &mut buf);
+            assert_eq!(buf, fresh(&other), "{} with {}'s last body", b.name, a.name);
+            checked += 1;
+        }
+    }
+    assert!(checked >= 16);
+}
+
 #[test]
 fn save_is_atomic_and_round_trips() {
     let dir = tempfile::tempdir().unwrap();

@@ -28,9 +28,25 @@ pub fn body_states(tour: &PreparedTour, out: &mut Evaluation) -> bool {
             out.warnings.push(Warning::OutOfOrder { stop: k });
             ok = false;
         }
-        match stop.body.state(stop.t) {
-            Ok(s) => sr.body_state = s,
+        let memo = &mut out.body_memo.0;
+        if memo.len() <= k {
+            memo.resize(k + 1, None);
+        }
+        let known = match memo[k] {
+            Some((eph, t, s))
+                if eph == stop.body.ephemeris && t.to_bits() == stop.t.0.to_bits() =>
+            {
+                Some(s)
+            }
+            _ => None,
+        };
+        match known.map_or_else(|| stop.body.state(stop.t), Ok) {
+            Ok(s) => {
+                memo[k] = Some((stop.body.ephemeris, stop.t.0, s));
+                sr.body_state = s;
+            }
             Err(e) => {
+                memo[k] = None;
                 out.warnings.push(Warning::Ephemeris { stop: k, reason: e });
                 ok = false;
             }

@@ -588,6 +588,21 @@ pub struct Evaluation {
     pub warnings: Vec<Warning>,
     /// Trajectory points of every leg (see `LegResult::samples`).
     pub samples: Vec<Sample>,
+    /// The bodies' states of the last evaluation, per stop: reused when a stop's body and epoch
+    /// are unchanged (the search's finite differences move one variable at a time, most of them
+    /// no epoch). A cache, not part of the value.
+    pub(crate) body_memo: BodyMemo,
+}
+
+/// Per stop: the body's ephemeris, the epoch (TDB days, compared bit for bit) and the state
+/// computed for them. Equal to any other memo: it never changes what an evaluation says.
+#[derive(Clone, Debug, Default)]
+pub(crate) struct BodyMemo(pub(crate) Vec<Option<(crate::tour::BodyEphemeris, f64, State)>>);
+
+impl PartialEq for BodyMemo {
+    fn eq(&self, _: &Self) -> bool {
+        true
+    }
 }
 
 impl Evaluation {
