@@ -70,9 +70,13 @@ fn samples_open_evaluate_and_save_unchanged() {
 #[test]
 fn a_reused_evaluation_buffer_says_what_a_fresh_one_says() {
     use tourwright_mission::evaluate::{EvalOptions, evaluate as eval_into};
+    let bench = Path::new(env!("CARGO_MANIFEST_DIR")).join("../../benches/mga");
     let tours: Vec<PreparedTour> = samples()
-        .iter()
-        .map(|p| tour(&files::load(p).unwrap()))
+        .into_iter()
+        .chain(
+            ["cassini2", "messenger_full", "rosetta"].map(|n| bench.join(format!("{n}.tour.ron"))),
+        )
+        .map(|p| tour(&files::load(&p).unwrap()))
         .collect();
     let fresh = |t: &PreparedTour| {
         let mut e = Evaluation::default();
@@ -98,6 +102,26 @@ fn a_reused_evaluation_buffer_says_what_a_fresh_one_says() {
                 "{}: epoch moved",
                 b.name
             );
+            // Each manoeuvre moved by one ulp of its fraction, one leg at a time.
+            for j in 0..b.legs.len() {
+                let mut shifted = b.clone();
+                let Some(m) = shifted.legs[j].dsm.as_mut() else {
+                    continue;
+                };
+                if let tourwright_mission::tour::DsmWhen::Fraction(f) = &mut m.at {
+                    *f = f64::from_bits(f.to_bits() + 1);
+                }
+                eval_into(b, &EvalOptions::default(), &mut buf);
+                eval_into(&shifted, &EvalOptions::default(), &mut buf);
+                let f = fresh(&shifted);
+                assert_eq!(buf, f, "{}: manoeuvre of leg {j} moved", b.name);
+                assert_eq!(
+                    buf.legs[j].dsm.map(|d| d.v_after),
+                    f.legs[j].dsm.map(|d| d.v_after),
+                    "{}: manoeuvre of leg {j} moved",
+                    b.name
+                );
+            }
             // Another body at the last stop, same epoch.
             let mut other = b.clone();
             other.stops[k].body = a.stops[a.stops.len() - 1].body.clone();
@@ -107,7 +131,7 @@ fn a_reused_evaluation_buffer_says_what_a_fresh_one_says() {
             checked += 1;
         }
     }
-    assert!(checked >= 16);
+    assert!(checked >= 49);
 }
 
 #[test]

@@ -121,22 +121,43 @@ pub fn leg(tour: &PreparedTour, k: usize, opts: &EvalOptions, out: &mut Evaluati
         }
     } else {
         let l = &tour.legs[k];
-        match lambert::solve_revs(
-            &from.r,
-            &to.r,
+        let key = [
+            from.r.x,
+            from.r.y,
+            from.r.z,
+            0.0,
+            0.0,
+            0.0,
+            0.0,
+            to.r.x,
+            to.r.y,
+            to.r.z,
             tof,
             tour.mu_sun,
-            l.direction,
-            l.revs,
-            l.branch,
-        ) {
+        ]
+        .map(f64::to_bits);
+        let shape = (false, l.direction, l.revs, l.branch);
+        let solved = memoised(out, k, key, shape, || {
+            lambert::solve_revs(
+                &from.r,
+                &to.r,
+                tof,
+                tour.mu_sun,
+                l.direction,
+                l.revs,
+                l.branch,
+            )
+            .map(|s| (from, s))
+            .map_err(|e| Warning::NoArc { leg: k, reason: e })
+        });
+        match solved.map(|(_, s)| s) {
             Ok(s) => {
                 leg.v_depart = s.v1;
                 leg.v_arrive = s.v2;
                 leg.arrive_state = State { r: to.r, v: s.v2 };
                 leg.solved = true;
             }
-            Err(e) => out.warnings.push(Warning::NoArc { leg: k, reason: e }),
+            Err(w) => out.warnings.push(w),
         }
     }
     if !leg.solved {
@@ -238,28 +259,42 @@ fn dsm_leg(
         v: from.v + vout,
     };
     let t1 = eta * tof;
-    let coast = match kepler::propagate(&start, t1, tour.mu_sun) {
-        Ok(c) => c,
-        Err(e) => {
-            out.warnings
-                .push(Warning::NoBallisticArc { leg: k, reason: e });
-            out.legs.push(leg);
-            return false;
-        }
-    };
     let l = &tour.legs[k];
-    let arc = match lambert::solve_revs(
-        &coast.r,
-        &to.r,
-        tof - t1,
+    let key = [
+        start.r.x,
+        start.r.y,
+        start.r.z,
+        start.v.x,
+        start.v.y,
+        start.v.z,
+        t1,
+        to.r.x,
+        to.r.y,
+        to.r.z,
+        tof,
         tour.mu_sun,
-        l.direction,
-        l.revs,
-        l.branch,
-    ) {
+    ]
+    .map(f64::to_bits);
+    let shape = (true, l.direction, l.revs, l.branch);
+    let solved = memoised(out, k, key, shape, || {
+        let coast = kepler::propagate(&start, t1, tour.mu_sun)
+            .map_err(|e| Warning::NoBallisticArc { leg: k, reason: e })?;
+        let arc = lambert::solve_revs(
+            &coast.r,
+            &to.r,
+            tof - t1,
+            tour.mu_sun,
+            l.direction,
+            l.revs,
+            l.branch,
+        )
+        .map_err(|e| Warning::NoArc { leg: k, reason: e })?;
+        Ok((coast, arc))
+    });
+    let (coast, arc) = match solved {
         Ok(s) => s,
-        Err(e) => {
-            out.warnings.push(Warning::NoArc { leg: k, reason: e });
+        Err(w) => {
+            out.warnings.push(w);
             out.legs.push(leg);
             return false;
         }
@@ -310,6 +345,35 @@ fn dsm_leg(
     out.stops[k + 1].vinf_in = arc.v2 - to.v;
     out.legs.push(leg);
     true
+}
+
+/// Leg `k`'s coast and arc: the last evaluation's when `key` (every input, as bits) and `shape`
+/// are the same, else `solve`'s (kept for the next evaluation when it succeeds).
+fn memoised(
+    out: &mut Evaluation,
+    k: usize,
+    key: [u64; 12],
+    shape: (bool, lambert::Direction, u32, lambert::Branch),
+    solve: impl FnOnce() -> Result<(State, lambert::LambertSolution), Warning>,
+) -> Result<(State, lambert::LambertSolution), Warning> {
+    let memo = &mut out.arc_memo.0;
+    if memo.len() <= k {
+        memo.resize(k + 1, None);
+    }
+    if let Some(m) = memo[k].filter(|m| m.key == key && m.shape == shape) {
+        return Ok((m.coast, m.arc));
+    }
+    let solved = solve();
+    out.arc_memo.0[k] = solved
+        .as_ref()
+        .ok()
+        .map(|&(coast, arc)| super::ArcMemoEntry {
+            key,
+            shape,
+            coast,
+            arc,
+        });
+    solved
 }
 
 /// Drawing samples of one arc, equally spaced in time; returns their range in `out.samples`.

@@ -592,6 +592,37 @@ pub struct Evaluation {
     /// are unchanged (the search's finite differences move one variable at a time, most of them
     /// no epoch). A cache, not part of the value.
     pub(crate) body_memo: BodyMemo,
+    /// The coast and arc of each Lambert or manoeuvre leg of the last evaluation, reused when the leg's
+    /// inputs are unchanged bit for bit (a finite-difference step on a later leg's variable
+    /// leaves the earlier legs alone). A cache, not part of the value.
+    pub(crate) arc_memo: ArcMemo,
+}
+
+/// Per leg: the inputs of a leg's solves and their results.
+#[derive(Clone, Debug, Default)]
+pub(crate) struct ArcMemo(pub(crate) Vec<Option<ArcMemoEntry>>);
+
+/// One leg's coast (Kepler; none on a leg without a manoeuvre) and arc (Lambert) with every
+/// input they read: the start state, the coast time, the target position, the leg's time of
+/// flight, μ☉ (as bits), whether the leg has a manoeuvre and the arc's direction, revolutions
+/// and branch.
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct ArcMemoEntry {
+    pub(crate) key: [u64; 12],
+    pub(crate) shape: (
+        bool,
+        tourwright_astro::lambert::Direction,
+        u32,
+        tourwright_astro::lambert::Branch,
+    ),
+    pub(crate) coast: State,
+    pub(crate) arc: tourwright_astro::lambert::LambertSolution,
+}
+
+impl PartialEq for ArcMemo {
+    fn eq(&self, _: &Self) -> bool {
+        true
+    }
 }
 
 /// Per stop: the body's ephemeris, the epoch (TDB days, compared bit for bit) and the state
