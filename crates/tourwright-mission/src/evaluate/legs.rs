@@ -34,7 +34,7 @@ pub fn body_states(tour: &PreparedTour, out: &mut Evaluation) -> bool {
         }
         let known = match memo[k] {
             Some((eph, t, s))
-                if eph == stop.body.ephemeris && t.to_bits() == stop.t.0.to_bits() =>
+                if same_source(&eph, &stop.body.ephemeris) && t.to_bits() == stop.t.0.to_bits() =>
             {
                 Some(s)
             }
@@ -54,6 +54,17 @@ pub fn body_states(tour: &PreparedTour, out: &mut Evaluation) -> bool {
         out.stops.push(sr);
     }
     ok
+}
+
+/// True when two ephemerides are one source: equal elements, or the very same opened kernel (a
+/// kernel compares equal to another by path, and a file changed on disk is opened anew).
+fn same_source(a: &crate::tour::BodyEphemeris, b: &crate::tour::BodyEphemeris) -> bool {
+    use crate::tour::BodyEphemeris::Planet;
+    use tourwright_astro::ephemeris::PlanetEphemeris::Kernel;
+    match (a, b) {
+        (Planet(Kernel(ka, pa)), Planet(Kernel(kb, pb))) => std::ptr::eq(*ka, *kb) && pa == pb,
+        _ => a == b,
+    }
 }
 
 /// Outgoing v∞ of a shaped (unpowered) swing-by at periapsis altitude `altitude_km` and B-plane
