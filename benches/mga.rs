@@ -46,25 +46,25 @@ const PROBLEMS: &[Bench] = &[
         file: "rosetta.tour.ron",
         published: 1.3433,
         source: "Rosetta (MGA-1DSM), Vinkó & Izzo 2008 set, from memory",
-        // 15 M: about 54 s on two idle cores (the goal's 60 s).
-        budgets: &[6_000_000, 15_000_000],
+        // 25 M: about 55 s on two idle cores (the goal's 60 s).
+        budgets: &[6_000_000, 25_000_000],
         mean_budgets: &[],
     },
     Bench {
         file: "messenger.tour.ron",
         published: 8.630,
         source: "Messenger reduced (MGA-1DSM), Vinkó & Izzo 2008 set",
-        // 20 M: about 58 s on two idle cores.
-        budgets: &[6_000_000, 20_000_000],
+        // 25 M: about 45 s on two idle cores (the goal's 60 s).
+        budgets: &[6_000_000, 25_000_000],
         mean_budgets: &[],
     },
     Bench {
         file: "messenger_full.tour.ron",
         published: 1.959,
         source: "Messenger full (MGA-1DSM), Vinkó & Izzo 2008 set, from memory",
-        // 120 M: about 8 minutes on two idle cores (the goal's 10 minutes); ten seeds take
-        // well over an hour (`TOURWRIGHT_MGA_SEEDS` runs fewer).
-        budgets: &[6_000_000, 120_000_000],
+        // 200 M: about 9 minutes on two idle cores (the goal's 10 minutes); ten seeds take
+        // an hour and a half (`TOURWRIGHT_MGA_SEEDS` runs fewer).
+        budgets: &[6_000_000, 200_000_000],
         mean_budgets: &[],
     },
 ];
