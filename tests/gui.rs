@@ -118,6 +118,13 @@ fn menu_exact(h: &mut Harness<'static, TourwrightApp>, top: &str, entry: &str) {
     h.run_steps(3);
 }
 
+/// View ▸ Search panel, through the menu, then the menu closed.
+fn open_search_panel(h: &mut Harness<'static, TourwrightApp>) {
+    menu_role(h, "View", Role::CheckBox, "Search panel");
+    h.key_press(Key::Escape);
+    h.run_steps(2);
+}
+
 fn menu_role(h: &mut Harness<'static, TourwrightApp>, top: &str, role: Role, entry: &str) {
     h.get_by_label(top).click();
     h.run_steps(2);
@@ -452,9 +459,7 @@ fn every_view_draws_and_frames_keep_coming_while_a_job_runs() {
     // A long optimiser run, started from the Search panel's button: the UI keeps building frames
     // while it works, then cancel stops it.
     h.state_mut().views.search.evals = 50_000_000;
-    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
-    h.key_press(Key::Escape);
-    h.run_steps(2);
+    open_search_panel(&mut h);
     h.get_by_label("Optimise dates").click();
     h.run_steps(2);
     for _ in 0..20 {
@@ -1057,9 +1062,7 @@ fn wait_for_jobs(h: &mut Harness<'static, TourwrightApp>) {
 fn a_result_for_another_tour_is_refused_and_one_for_a_changed_tour_is_judged_first() {
     use tourwright::gui::action::Action;
     let mut h = harness(0);
-    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
-    h.key_press(Key::Escape);
-    h.run_steps(2);
+    open_search_panel(&mut h);
     h.state_mut().views.search.evals = 60_000;
     h.get_by_label("Optimise dates").click();
     h.run_steps(1);
@@ -1112,9 +1115,7 @@ fn a_result_for_another_tour_is_refused_and_one_for_a_changed_tour_is_judged_fir
 #[test]
 fn the_search_panel_shows_and_edits_the_search_bounds() {
     let mut h = harness(0);
-    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
-    h.key_press(Key::Escape);
-    h.run_steps(2);
+    open_search_panel(&mut h);
     // Lantern sets its bounds: the first leg's shortest time of flight is 80 days.
     let before = h.state().design().search.leg_tof[0];
     assert_eq!(before.min_days, 80.0);
@@ -1138,9 +1139,7 @@ fn the_search_panel_shows_and_edits_the_search_bounds() {
 #[test]
 fn the_search_objective_is_the_designs_and_an_undoable_edit() {
     let mut h = harness(0);
-    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
-    h.key_press(Key::Escape);
-    h.run_steps(2);
+    open_search_panel(&mut h);
     let from_file = h.state().design().search.objective;
     let shown = |h: &Harness<'static, TourwrightApp>| {
         let n = h.get_by_role_and_label(Role::ComboBox, "objective");
@@ -1178,9 +1177,7 @@ fn the_search_objective_is_the_designs_and_an_undoable_edit() {
 #[test]
 fn explorer_rows_show_their_objective_and_the_limits_they_break() {
     let mut h = harness(0);
-    menu_role(&mut h, "View", Role::CheckBox, "Search panel");
-    h.key_press(Key::Escape);
-    h.run_steps(2);
+    open_search_panel(&mut h);
     {
         let s = &mut h.state_mut().views.search;
         s.via = vec![tourwright::astro::bodies::Planet::Venus];
